@@ -1,0 +1,1 @@
+"""Thermodynamic core: components, models (residual Helmholtz), properties, solvers, states."""

@@ -1,0 +1,355 @@
+"""The public facade: ``Fluid(composition, model=...)`` with ``state``, ``saturation``, ``critical_point``.
+
+SI in and out (K, Pa, mol m-3 or kg m-3, J mol-1 or J kg-1). Arrays of equal shape give batches.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Mapping
+
+import numpy as np
+
+from ..errors import DataError, InputError, ModelRangeError
+from .build import build_model, canonical_model_name
+from .components import Component, get_component
+from .ideal_gas import IdealGasParts
+from .solvers.density import check_Tp, stable_density
+from .solvers.flash_pure import flash_p_prop
+from .solvers.result import SolverReport
+from .solvers.saturation import saturation_pressure, saturation_temperature
+from .state import GAS, LIQUID, SUPERCRITICAL, TWO_PHASE, State
+
+
+@dataclass(frozen=True)
+class CriticalState:
+    """A critical point: T [K], p [Pa], rho_molar [mol m-3], rho_mass [kg m-3]."""
+
+    T: float
+    p: float
+    rho_molar: float
+    rho_mass: float
+
+
+@dataclass(frozen=True)
+class SaturationState:
+    """Coexisting liquid and vapour of a pure fluid: T [K], p [Pa], liquid and vapor States."""
+
+    T: object
+    p: object
+    liquid: State
+    vapor: State
+    report: SolverReport
+
+
+def _composition(composition) -> tuple[tuple[Component, ...], np.ndarray]:
+    if isinstance(composition, str):
+        composition = {composition: 1.0}
+    if not isinstance(composition, Mapping) or not composition:
+        raise InputError("composition must map component names to mole fractions, e.g. "
+                         "{'CO2': 0.97, 'N2': 0.03}", "composition")
+    comps, x, seen = [], [], set()
+    for name, frac in composition.items():
+        comp = get_component(name)
+        if comp.name in seen:
+            raise InputError(f"component {comp.name} is listed twice (as {name!r}); list each once", "composition")
+        seen.add(comp.name)
+        try:
+            f = float(frac)
+        except (TypeError, ValueError):
+            raise InputError(f"mole fraction of {name} is {frac!r}, not a number", "composition") from None
+        if not np.isfinite(f) or f < 0 or f > 1:
+            raise InputError(f"mole fraction of {name} is {f}; mole fractions lie between 0 and 1", "composition")
+        comps.append(comp)
+        x.append(f)
+    x = np.array(x)
+    total = x.sum()
+    if abs(total - 1.0) > 1e-6:
+        raise InputError(f"mole fractions sum to {total:.6g}, not 1 (tolerance 1e-6); "
+                         f"fix them so that they add up to exactly 1", "composition")
+    return tuple(comps), x / total
+
+
+def _kij_matrix(comps, kij) -> np.ndarray:
+    nc = len(comps)
+    k = np.zeros((nc, nc))
+    if not kij:
+        return k
+    if not isinstance(kij, Mapping):
+        raise InputError("kij must be a nested mapping such as {'CO2': {'N2': -0.036}}", "kij")
+    index = {c.name: i for i, c in enumerate(comps)}
+    for a, row in kij.items():
+        if not isinstance(row, Mapping):
+            raise InputError(f"kij[{a!r}] must map partner components to values", "kij")
+        for b, val in row.items():
+            ia, ib = index.get(get_component(a).name), index.get(get_component(b).name)
+            if ia is None or ib is None:
+                missing = a if ia is None else b
+                raise InputError(f"kij names {missing!r}, which is not in the composition", "kij")
+            if ia == ib:
+                raise InputError(f"kij of {a} with itself is meaningless; give pairs of different components", "kij")
+            try:
+                v = float(val)
+            except (TypeError, ValueError):
+                raise InputError(f"kij[{a}][{b}] = {val!r} is not a number", "kij") from None
+            if not -1.0 < v < 1.0:
+                raise InputError(f"kij[{a}][{b}] = {v} is outside (-1, 1)", "kij")
+            if k[ia, ib] != 0.0 and k[ia, ib] != v:
+                raise InputError(f"kij for {a}-{b} is given twice with different values", "kij")
+            k[ia, ib] = k[ib, ia] = v
+    return k
+
+
+class Fluid:
+    """A fluid of fixed composition under one equation of state.
+
+    Parameters
+    ----------
+    composition : mapping of str to float, or str
+        Component names (formula or common name) to mole fractions [-]; a single name means pure.
+    model : str
+        ``ideal-gas``, ``van-der-waals``, ``virial``, ``virial-3term``, ``redlich-kwong``,
+        ``soave-redlich-kwong``, ``peng-robinson``, ``peng-robinson-1978``,
+        ``peng-robinson-translated`` or ``span-wagner`` (aliases ``ig``, ``vdw``, ``rk``, ``srk``,
+        ``pr``, ``pr78``, ``prt``, ``sw``).
+    constants : mapping, optional
+        Per-component overrides in SI, e.g. ``{"CO2": {"Tc": 304.1282, "pc": 7377300.0,
+        "omega": 0.22394, "M": 0.0440098}}`` (K, Pa, -, kg/mol).
+    kij : mapping, optional
+        Binary interaction parameters ``{"CO2": {"N2": -0.036}}`` [-], symmetric.
+
+    Raises
+    ------
+    InputError, DataError
+        Bad composition, unknown component (with a suggestion), unknown model, bad constants or kij.
+    """
+
+    def __init__(self, composition, model: str = "peng-robinson", constants=None, kij=None):
+        comps, x = _composition(composition)
+        if constants:
+            if not isinstance(constants, Mapping):
+                raise InputError("constants must map component names to {Tc, pc, omega, M} in SI", "constants")
+            pinned = {get_component(k).name: v for k, v in constants.items()}
+            unknown = set(pinned) - {c.name for c in comps}
+            if unknown:
+                raise InputError(f"constants given for {sorted(unknown)}, which are not in the composition",
+                                 "constants")
+            comps = tuple(c.with_constants(**pinned[c.name]) if c.name in pinned else c for c in comps)
+        self.model_name = canonical_model_name(model)
+        self.components: tuple[str, ...] = tuple(c.name for c in comps)
+        self.x = x
+        self._comps = comps
+        self.kij = _kij_matrix(comps, kij)
+        self.model = build_model(self.model_name, comps, self.kij)
+        self.ideal = IdealGasParts.from_components(comps)
+        self.M_i = np.array([c.M for c in comps])
+        self._crit = None
+        if len(comps) == 1 and getattr(self.model, "has_two_phase", True):
+            self._crit = self.model.critical_point()
+
+    # -- helpers ------------------------------------------------------------------------
+    @property
+    def is_pure(self) -> bool:
+        return len(self.components) == 1
+
+    @property
+    def M(self) -> float:
+        """Molar mass [kg mol-1]."""
+        return float(self.x @ self.M_i)
+
+    def __repr__(self) -> str:
+        comp = ", ".join(f"{n}: {v:g}" for n, v in zip(self.components, self.x))
+        return f"Fluid({{{comp}}}, model={self.model_name!r})"
+
+    def _xb(self, shape):
+        return np.broadcast_to(self.x, tuple(shape) + (len(self.x),))
+
+    def _T_limits(self):
+        lo = float(self.ideal.T_min.max())
+        hi = float(self.ideal.T_max.min())
+        v = getattr(self.model, "validity", None)
+        if v:
+            lo, hi = max(lo, v.get("T_min", lo)), min(hi, v.get("T_max", hi))
+        return lo, hi
+
+    def _check_T(self, T):
+        lo, hi = self._T_limits()
+        T = np.asarray(T, dtype=float)
+        if np.any(T < lo) or np.any(T > hi):
+            bad = float(T.min()) if np.any(T < lo) else float(T.max())
+            raise ModelRangeError(f"T = {bad:.3f} K is outside the range this fluid and model support "
+                                  f"({lo:.2f}-{hi:.2f} K; {self.model_name}, ideal-gas data of "
+                                  f"{', '.join(self.components)}).")
+
+    def _label(self, T, p, rho):
+        """Phase codes of single-phase states (pure fluids; mixtures are labelled by their flash)."""
+        T, p, rho = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float), np.asarray(rho, float))
+        if self._crit is not None:
+            c = self._crit
+            return np.where(T >= c.T, np.where(p >= c.p, SUPERCRITICAL, GAS), np.where(rho > c.rho, LIQUID, GAS))
+        comp = self._comps[0] if self.is_pure else None
+        Tc = comp.Tc if comp else float(self.x @ np.array([k.Tc for k in self._comps]))
+        pc = comp.pc if comp else float(self.x @ np.array([k.pc for k in self._comps]))
+        return np.where((T >= Tc) & (p >= pc), SUPERCRITICAL, GAS)
+
+    def _require_pure(self, what):
+        if not self.is_pure:
+            raise InputError(f"{what} is defined for pure fluids; for mixtures use bubble_point/dew_point "
+                             f"(phase envelope)", what)
+
+    # -- public API ---------------------------------------------------------------------
+    def state(self, T=None, p=None, rho=None, h=None, s=None, *, rho_mass=None, h_mass=None, s_mass=None) -> State:
+        """The stable state from one pair of specifications (SI).
+
+        Pairs: (T, p), (T, rho) or (T, rho_mass), (p, h) or (p, h_mass), (p, s) or (p, s_mass).
+        Molar h [J mol-1], s [J mol-1 K-1]; mass-based with the ``_mass`` keywords.
+        Arrays of equal shape give a batch (T, p and T, rho are vectorised).
+
+        Raises
+        ------
+        InputError
+            Wrong combination of specifications, or non-physical values.
+        ModelRangeError
+            State outside the model's or data's validity.
+        ConvergenceError
+            A solver failed (with its report).
+        """
+        if rho_mass is not None:
+            rho = np.asarray(rho_mass, dtype=float) / self.M
+        if h_mass is not None:
+            h = np.asarray(h_mass, dtype=float) * self.M
+        if s_mass is not None:
+            s = np.asarray(s_mass, dtype=float) * self.M
+        given = {k for k, v in dict(T=T, p=p, rho=rho, h=h, s=s).items() if v is not None}
+        if given == {"T", "p"}:
+            return self._state_Tp(T, p)
+        if given == {"T", "rho"}:
+            return self._state_Trho(T, rho)
+        if given in ({"p", "h"}, {"p", "s"}):
+            key = "h" if "h" in given else "s"
+            return self._state_p_prop(p, h if key == "h" else s, key)
+        raise InputError(f"give exactly one pair of specifications: (T, p), (T, rho), (p, h) or (p, s); "
+                         f"got {sorted(given) or 'none'}", "state")
+
+    def _state_Tp(self, T, p):
+        T, p = np.broadcast_arrays(np.asarray(T, dtype=float), np.asarray(p, dtype=float))
+        check_Tp(T, p)
+        self._check_T(T)
+        if not self.is_pure and getattr(self.model, "has_two_phase", True):
+            from .mixture import mixture_state_Tp  # noqa: F401  (arrives with the mixtures work)
+
+            return mixture_state_Tp(self, T, p)
+        x = self._xb(T.shape)
+        rho = stable_density(self.model, T, p, x, self._crit.rho if self._crit else None)
+        return State(self.model, self.ideal, self.M_i, T, rho, x, self._label(T, p, rho))
+
+    def _state_Trho(self, T, rho):
+        T, rho = np.broadcast_arrays(np.asarray(T, dtype=float), np.asarray(rho, dtype=float))
+        check_Tp(T, np.ones_like(T))
+        if not np.all(np.isfinite(rho)) or np.any(rho <= 0):
+            raise InputError("density must be a finite positive number (mol/m3, or kg/m3 with rho_mass=)", "rho")
+        self._check_T(T)
+        x = self._xb(T.shape)
+        lim = self.model.max_density(x)
+        if np.any(rho >= lim):
+            raise ModelRangeError(f"density {float(np.max(rho)):.6g} mol/m3 is beyond the {self.model_name} model's "
+                                  f"limit {float(np.min(lim)):.6g} mol/m3 for this fluid")
+        if not self.is_pure and getattr(self.model, "has_two_phase", True):
+            raise InputError("(T, rho) states of mixtures need the mixture flash; give (T, p) instead", "state")
+        from .properties import pressure
+
+        p = pressure(self.model, T, rho, x)
+        codes = self._label(T, p, rho)
+        c = self._crit
+        if c is None or not np.any(T < c.T):
+            if np.any(p <= 0):
+                raise ModelRangeError(f"the {self.model_name} model gives a negative pressure at this (T, rho)")
+            return State(self.model, self.ideal, self.M_i, T, rho, x, codes)
+        inside = T < c.T
+        Tin = np.where(inside, T, 0.5 * c.T)
+        sat = saturation_pressure(self.model, Tin, c, self.x)
+        rl, rv = np.asarray(sat.rho_liq), np.asarray(sat.rho_vap)
+        two = inside & (rho > rv) & (rho < rl)
+        if not np.any(two):
+            return State(self.model, self.ideal, self.M_i, T, rho, x, codes)
+        q = np.where(two, (1.0 / rho - 1.0 / rl) / (1.0 / rv - 1.0 / rl), 0.0)
+        codes = np.where(two, TWO_PHASE, codes)
+        return State(self.model, self.ideal, self.M_i, T, rho, x, codes, q, np.where(two, rl, rho),
+                     np.where(two, rv, rho), x, x)
+
+    def _state_p_prop(self, p, target, key):
+        p, target = np.broadcast_arrays(np.asarray(p, dtype=float), np.asarray(target, dtype=float))
+        check_Tp(np.ones_like(p), p)
+        if not np.all(np.isfinite(target)):
+            raise InputError(f"{key} must be a finite number", key)
+        if not self.is_pure and getattr(self.model, "has_two_phase", True):
+            from .mixture import mixture_state_p_prop
+
+            return mixture_state_p_prop(self, p, target, key)
+        lo, hi = self._T_limits()
+        comp = self._comps[0] if self.is_pure else None
+        results = []
+        for pi, ti in zip(p.ravel(), target.ravel()):
+            r = flash_p_prop(self.model, self.ideal, self.M_i, self.x, float(pi), float(ti), key, self._crit,
+                             lo, hi)
+            if comp is not None and r["phase"] == "two-phase" and pi < comp.pt and self.model_name != "span-wagner":
+                raise ModelRangeError(
+                    f"{comp.name} at p = {pi / 1e5:.4f} bar is below its triple-point pressure "
+                    f"{comp.pt / 1e5:.4f} bar: no liquid can exist there and the state would hold solid. "
+                    f"The {self.model_name} model has no solid phase; use model 'span-wagner' for pure CO2.")
+            results.append(r)
+        shape = p.shape
+        T = np.array([r["T"] for r in results]).reshape(shape)
+        rho = np.array([r["rho"] for r in results]).reshape(shape)
+        two = np.array([r["phase"] == "two-phase" for r in results]).reshape(shape)
+        x = self._xb(shape)
+        codes = self._label(T, p, rho)
+        if not np.any(two):
+            return State(self.model, self.ideal, self.M_i, T, rho, x, codes)
+        q = np.array([r["q"] if r["q"] is not None else 0.0 for r in results]).reshape(shape)
+        rl = np.array([r["rho_l"] if r["rho_l"] is not None else r["rho"] for r in results]).reshape(shape)
+        rv = np.array([r["rho_v"] if r["rho_v"] is not None else r["rho"] for r in results]).reshape(shape)
+        return State(self.model, self.ideal, self.M_i, T, rho, x, np.where(two, TWO_PHASE, codes), q, rl, rv, x, x)
+
+    def saturation(self, T=None, p=None) -> SaturationState:
+        """Saturated liquid and vapour of a pure fluid at T [K] or p [Pa] (arrays allowed).
+
+        Raises
+        ------
+        ModelRangeError
+            No two-phase region in the model, T outside [triple point, Tc), or p outside [pt, pc).
+        """
+        self._require_pure("saturation")
+        if (T is None) == (p is None):
+            raise InputError("give either T or p for saturation", "saturation")
+        if self._crit is None:
+            raise ModelRangeError(f"the {self.model_name} model has no two-phase region: there is no saturation "
+                                  f"state. Choose a cubic or reference model to see condensation.")
+        comp = self._comps[0]
+        T_min = comp.Tt
+        if T is not None:
+            T = np.asarray(T, dtype=float)
+            check_Tp(T, np.ones_like(T))
+            if np.any(T < T_min):
+                raise ModelRangeError(f"saturation of {comp.name} at T = {float(T.min()):.3f} K: below the triple "
+                                      f"point {T_min:.3f} K the liquid is not stable (solid forms).")
+            sat = saturation_pressure(self.model, T, self._crit, self.x)
+        else:
+            p = np.asarray(p, dtype=float)
+            check_Tp(np.ones_like(p), p)
+            sat = saturation_temperature(self.model, p, self._crit, self.x, T_min=T_min)
+        Ts = np.asarray(sat.T)
+        x = self._xb(Ts.shape)
+        liq = State(self.model, self.ideal, self.M_i, Ts, np.asarray(sat.rho_liq), x, np.full(Ts.shape, LIQUID))
+        vap = State(self.model, self.ideal, self.M_i, Ts, np.asarray(sat.rho_vap), x, np.full(Ts.shape, GAS))
+        return SaturationState(sat.T, sat.p, liq, vap, sat.report)
+
+    def critical_point(self) -> CriticalState:
+        """The model's own critical point (pure fluids); mixtures arrive with the mixture solvers."""
+        if not self.is_pure:
+            from .mixture import mixture_critical_point
+
+            return mixture_critical_point(self)
+        if self._crit is None:
+            raise ModelRangeError(f"the {self.model_name} model has no critical point (no two-phase region)")
+        c = self._crit
+        return CriticalState(T=float(c.T), p=float(c.p), rho_molar=float(c.rho), rho_mass=float(c.rho * self.M))

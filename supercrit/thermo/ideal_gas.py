@@ -1,0 +1,95 @@
+"""Ideal-gas part of every fluid: cp0(T), and h and s with supercrit's reference state.
+
+Reference state (documented, used by every model): for each pure component h = 0 and s = 0 for
+the ideal gas at T_REF = 298.15 K and P_REF = 101325 Pa. Mixtures add ideal mixing,
+s = sum x_i s_i - R sum x_i ln x_i. Tables that use another reference state (e.g. IIR, NBP) agree
+with supercrit in *differences* of h and s, never in absolute values.
+
+The correlation is the ideal-gas Helmholtz energy of each component's reference equation of
+state (Planck-Einstein and power terms, see components.yaml). Models never contain this part;
+:mod:`supercrit.thermo.properties` adds it to the residual part with the model's own gas constant.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import ModelRangeError
+from .components import Component
+from .constants import T_REF
+
+
+@dataclass(frozen=True, eq=False)
+class IdealGasParts:
+    """Ideal-gas cp0 of a set of components, stacked for vectorised evaluation (shape (nc, K))."""
+
+    names: tuple[str, ...]
+    c0: np.ndarray
+    pe_n: np.ndarray
+    pe_theta: np.ndarray
+    pw_n: np.ndarray
+    pw_t: np.ndarray
+    pw_Tred: np.ndarray
+    T_min: np.ndarray
+    T_max: np.ndarray
+
+    @classmethod
+    def from_components(cls, comps: tuple[Component, ...]) -> "IdealGasParts":
+        nc = len(comps)
+        kpe = max(1, max(len(c.cp0.pe_n) for c in comps))
+        kpw = max(1, max(len(c.cp0.pw_n) for c in comps))
+        pe_n, pe_th = np.zeros((nc, kpe)), np.ones((nc, kpe))
+        pw_n, pw_t, pw_tr = np.zeros((nc, kpw)), np.full((nc, kpw), 2.0), np.ones((nc, kpw))
+        for i, c in enumerate(comps):
+            k = len(c.cp0.pe_n)
+            pe_n[i, :k], pe_th[i, :k] = c.cp0.pe_n, c.cp0.pe_theta
+            k = len(c.cp0.pw_n)
+            pw_n[i, :k], pw_t[i, :k], pw_tr[i, :k] = c.cp0.pw_n, c.cp0.pw_t, c.cp0.pw_Tred
+        return cls(tuple(c.name for c in comps), np.array([c.cp0.c0 for c in comps]), pe_n, pe_th, pw_n, pw_t,
+                   pw_tr, np.array([c.cp0.T_min for c in comps]), np.array([c.cp0.T_max for c in comps]))
+
+    def check_range(self, T) -> None:
+        """Raise ModelRangeError if any T is outside every component's cp0 correlation range."""
+        T = np.asarray(T, dtype=float)
+        lo, hi = self.T_min.max(), self.T_max.min()
+        if T.size and (np.nanmin(T) < lo or np.nanmax(T) > hi):
+            bad = float(np.nanmin(T)) if np.nanmin(T) < lo else float(np.nanmax(T))
+            raise ModelRangeError(
+                f"ideal-gas heat capacity of {', '.join(self.names)} is valid from {lo:g} K to {hi:g} K; "
+                f"T = {bad:.2f} K is outside. Keep temperatures inside that range.")
+
+    def _u(self, T):
+        return self.pe_theta / np.asarray(T, dtype=float)[..., None, None]
+
+    def cp0_R(self, T) -> np.ndarray:
+        """cp0/R per component [-], shape (..., nc)."""
+        T = np.asarray(T, dtype=float)
+        u = self._u(T)
+        em1 = np.expm1(u)
+        pe = np.sum(self.pe_n * u * u * (em1 + 1.0) / (em1 * em1), axis=-1)
+        pw = np.sum(-self.pw_n * self.pw_t * (self.pw_t - 1) * (self.pw_Tred / T[..., None, None]) ** self.pw_t, axis=-1)
+        return self.c0 + pe + pw
+
+    def _H(self, T):  # antiderivative of cp0/R dT [K]
+        T = np.asarray(T, dtype=float)
+        u = self._u(T)
+        pe = np.sum(self.pe_n * self.pe_theta / np.expm1(u), axis=-1)
+        Tb = T[..., None, None]
+        pw = np.sum(self.pw_n * self.pw_t * self.pw_Tred ** self.pw_t * Tb ** (1 - self.pw_t), axis=-1)
+        return self.c0 * T[..., None] + pe + pw
+
+    def _S(self, T):  # antiderivative of cp0/(R T) dT [-]
+        T = np.asarray(T, dtype=float)
+        u = self._u(T)
+        pe = np.sum(self.pe_n * (u / np.expm1(u) - np.log(-np.expm1(-u))), axis=-1)
+        pw = np.sum(self.pw_n * (self.pw_t - 1) * (self.pw_Tred / T[..., None, None]) ** self.pw_t, axis=-1)
+        return self.c0 * np.log(T)[..., None] + pe + pw
+
+    def h0_R(self, T) -> np.ndarray:
+        """(h0(T) - h0(T_REF))/R per component [K], shape (..., nc)."""
+        return self._H(T) - self._H(T_REF)
+
+    def s0_R(self, T) -> np.ndarray:
+        """(s0(T, P_REF) - s0(T_REF, P_REF))/R per component [-], shape (..., nc)."""
+        return self._S(T) - self._S(T_REF)

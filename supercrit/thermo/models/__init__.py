@@ -1,0 +1,1 @@
+"""Equations of state, each one residual-Helmholtz function (see base.py)."""

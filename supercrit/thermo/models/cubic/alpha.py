@@ -1,0 +1,71 @@
+"""Temperature functions alpha(T) of cubic equations of state, as q = sqrt(alpha) and its T-derivatives.
+
+Each returns ``(q, dq/dT, d2q/dT2)`` with shape (..., nc); a_i(T) = ac_i q_i(T)^2.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+
+@dataclass(frozen=True, eq=False)
+class ConstantAlpha:
+    """alpha = 1 (van der Waals 1873)."""
+
+    Tc: np.ndarray  # [K], shape (nc,)
+
+    def q(self, T):
+        one = np.ones(np.shape(T) + self.Tc.shape)
+        return one, 0.0 * one, 0.0 * one
+
+
+@dataclass(frozen=True, eq=False)
+class RedlichKwongAlpha:
+    """alpha = Tr^-1/2 (Redlich & Kwong, Chem. Rev. 44 (1949) 233, doi:10.1021/cr60137a013)."""
+
+    Tc: np.ndarray  # [K], shape (nc,)
+
+    def q(self, T):
+        T = np.asarray(T, dtype=float)[..., None]
+        q = (T / self.Tc) ** -0.25
+        return q, -0.25 * q / T, 0.3125 * q / (T * T)
+
+
+@dataclass(frozen=True, eq=False)
+class SoaveAlpha:
+    """alpha = [1 + m (1 - sqrt(Tr))]^2 with m(omega) from the chosen publication.
+
+    m_SRK = 0.480 + 1.574 w - 0.176 w^2 (Soave, Chem. Eng. Sci. 27 (1972) 1197, doi:10.1016/0009-2509(72)80096-4);
+    m_PR76 = 0.37464 + 1.54226 w - 0.26992 w^2 (Peng & Robinson, Ind. Eng. Chem. Fundam. 15 (1976) 59,
+    doi:10.1021/i160057a011); m_PR78 as PR76 for w <= 0.491, else
+    0.379642 + 1.48503 w - 0.164423 w^2 + 0.016666 w^3 (Robinson & Peng, GPA RR-28, 1978).
+    """
+
+    Tc: np.ndarray  # [K], shape (nc,)
+    m: np.ndarray  # [-], shape (nc,)
+
+    def q(self, T):
+        T = np.asarray(T, dtype=float)[..., None]
+        sTTc = np.sqrt(T * self.Tc)
+        q = 1.0 + self.m * (1.0 - np.sqrt(T / self.Tc))
+        return q, -self.m / (2.0 * sTTc), self.m / (4.0 * T * sTTc)
+
+
+def m_srk(omega):
+    """Soave (1972) slope m(omega) for SRK [-]."""
+    w = np.asarray(omega, dtype=float)
+    return 0.480 + 1.574 * w - 0.176 * w * w  # Soave 1972, eq. 13
+
+
+def m_pr1976(omega):
+    """Peng & Robinson (1976) slope m(omega) [-]."""
+    w = np.asarray(omega, dtype=float)
+    return 0.37464 + 1.54226 * w - 0.26992 * w * w  # Peng & Robinson 1976, eq. 18
+
+
+def m_pr1978(omega):
+    """Robinson & Peng (1978) slope m(omega) [-]: the 1976 form below omega = 0.491, a cubic above."""
+    w = np.asarray(omega, dtype=float)
+    heavy = 0.379642 + 1.48503 * w - 0.164423 * w**2 + 0.016666 * w**3  # Robinson & Peng 1978 (GPA RR-28)
+    return np.where(w > 0.491, heavy, m_pr1976(w))

@@ -1,0 +1,92 @@
+"""Every property, derived once for every model from alpha_r derivatives plus the ideal-gas part.
+
+With A_ij from :class:`~supercrit.thermo.models.base.AlpharDerivs` and R the model's gas constant:
+p = rho R T (1 + A01); (dp/drho)_T = R T (1 + 2 A01 + A02); (dp/dT)_rho = rho R (1 + A01 - A11);
+h = h0(T) + R T (A10 + A01); s = s0(T, rho) + R (A10 - A00); cv = cp0 - R - R A20;
+cp = cv + T (dp/dT)^2 / (rho^2 dp/drho); w^2 = (cp/cv)(dp/drho)/M;
+mu_JT = (T (dp/dT)/(rho^2 dp/drho) - 1/rho)/cp; kappa_T = 1/(rho dp/drho); alpha_p = (dp/dT)/(rho dp/drho);
+ln phi_i = d(n alpha_r)/dn_i - ln Z.
+The ideal-gas part and the h/s reference state are those of :mod:`supercrit.thermo.ideal_gas`.
+"""
+from __future__ import annotations
+
+import numpy as np
+
+from .constants import P_REF
+
+
+def pressure(model, T, rho, x):
+    """Pressure [Pa]: p = rho R T (1 + A01)."""
+    T, rho = np.asarray(T, dtype=float), np.asarray(rho, dtype=float)
+    return rho * model.R(x) * T * (1.0 + model.alphar_derivs(T, rho, x).A01)
+
+
+def dp_drho(model, T, rho, x):
+    """(dp/drho)_T [Pa m3 mol-1] = R T (1 + 2 A01 + A02)."""
+    d = model.alphar_derivs(T, rho, x)
+    return model.R(x) * np.asarray(T, dtype=float) * (1.0 + 2.0 * d.A01 + d.A02)
+
+
+def ln_fugacity_coefficients(model, T, rho, x):
+    """ln phi_i [-], shape (..., nc)."""
+    d = model.alphar_derivs(T, rho, x)
+    return model.ndalphar_dni(T, rho, x) - np.log1p(d.A01)[..., None]
+
+
+def reduced_gibbs_residual(model, T, rho, x):
+    """(g - g_ig(T, p))/(R T) at the state's own pressure [-] = A00 + A01 - ln(1 + A01).
+
+    Used to choose between density roots at fixed (T, p, x): the lowest value is stable.
+    """
+    d = model.alphar_derivs(T, rho, x)
+    return d.A00 + d.A01 - np.log1p(d.A01)
+
+
+def molar_mass(M, x):
+    """Molar mass of the mixture [kg mol-1] from component masses M (nc,) and x (..., nc)."""
+    return np.asarray(x, dtype=float) @ M
+
+
+def all_properties(model, ideal, M, T, rho, x) -> dict[str, np.ndarray]:
+    """Every single-phase property at (T, rho, x), arrays broadcast over (...).
+
+    Parameters
+    ----------
+    model : Model
+    ideal : IdealGasParts
+    M : ndarray (nc,)
+        Component molar masses [kg mol-1].
+    T : array_like [K]
+    rho : array_like [mol m-3]
+    x : array_like (..., nc) [-]
+
+    Returns
+    -------
+    dict
+        p [Pa], Z [-], h, u, g [J mol-1], s, cp, cv [J mol-1 K-1], w [m s-1], mu_jt [K Pa-1],
+        kappa_T [Pa-1], alpha_p [K-1], dpdrho [Pa m3 mol-1], dpdT [Pa K-1], M [kg mol-1].
+    """
+    T, rho, x = np.asarray(T, dtype=float), np.asarray(rho, dtype=float), np.asarray(x, dtype=float)
+    d = model.alphar_derivs(T, rho, x)
+    R = model.R(x)
+    RT = R * T
+    Z = 1.0 + d.A01
+    p = rho * RT * Z
+    dpdrho = RT * (1.0 + 2.0 * d.A01 + d.A02)
+    dpdT = rho * R * (1.0 + d.A01 - d.A11)
+    cp0_R = np.sum(x * ideal.cp0_R(T), axis=-1)
+    h0_R = np.sum(x * ideal.h0_R(T), axis=-1)
+    xlnx = np.sum(np.where(x > 0, x * np.log(np.where(x > 0, x, 1.0)), 0.0), axis=-1)
+    s0_R = np.sum(x * ideal.s0_R(T), axis=-1) - np.log(rho * RT / P_REF) - xlnx
+    h = R * h0_R + RT * (d.A10 + d.A01)
+    s = R * s0_R + R * (d.A10 - d.A00)
+    cv = R * (cp0_R - 1.0 - d.A20)
+    cp = cv + T * dpdT * dpdT / (rho * rho * dpdrho)
+    Mm = x @ M
+    w = np.sqrt(np.maximum(cp / cv * dpdrho / Mm, 0.0))
+    dvdT = dpdT / (rho * rho * dpdrho)
+    return {
+        "p": p, "Z": Z, "h": h, "s": s, "u": h - p / rho, "g": h - T * s, "cp": cp, "cv": cv, "w": w,
+        "mu_jt": (T * dvdT - 1.0 / rho) / cp, "kappa_T": 1.0 / (rho * dpdrho), "alpha_p": dpdT / (rho * dpdrho),
+        "dpdrho": dpdrho, "dpdT": dpdT, "M": Mm,
+    }

@@ -1,0 +1,257 @@
+"""Pure-fluid saturation: psat(T) and Tsat(p) with the coexisting densities, by equal fugacity.
+
+Method: Newton in (rho_liq, rho_vap) on the Maxwell conditions p(rho_L) = p(rho_V) and
+mu(rho_L) = mu(rho_V) (Akasaka, J. Therm. Sci. Tech. 3 (2008) 442, doi:10.1299/jtst.3.442), with
+starting values from the model's ancillary equations where it has them, else from a grid
+construction: p(rho) and mu(rho) are tabulated on the two mechanically stable branches (on a grid
+dense near rho_c) and the equal-mu pressure is found by bisection on interpolated branches. The
+van der Waals loop is therefore resolved by the equal-area (equal-fugacity) construction, never
+by returning a mechanically unstable root.
+
+Notes
+-----
+Tolerance: |p_L/p_V - 1| < 1e-13 and |mu_L - mu_V|/RT < 1e-13. Converges from the triple point
+(or 0.5 Tc) to Tc - 1e-4 K for the cubic models; above the model's critical temperature there is
+no saturation state and ModelRangeError is raised.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ...errors import ConvergenceError, InputError, ModelRangeError
+from .result import SolverReport
+
+
+@dataclass(frozen=True)
+class Saturation:
+    """Coexisting states of a pure fluid: T [K], p [Pa], rho_liq, rho_vap [mol m-3] (arrays or floats)."""
+
+    T: np.ndarray
+    p: np.ndarray
+    rho_liq: np.ndarray
+    rho_vap: np.ndarray
+    report: SolverReport
+
+
+def _JK(model, T, rho, x):
+    """J = p/(R T) [mol m-3], K = mu_r/(R T) + ln rho, dJ/drho [-] on one branch."""
+    d = model.alphar_derivs(T, rho, x)
+    J = rho * (1.0 + d.A01)
+    K = np.log(rho) + d.A00 + d.A01
+    dJ = 1.0 + 2.0 * d.A01 + d.A02
+    return J, K, dJ
+
+
+def _no_saturation(model, T, Tc):
+    if not getattr(model, "has_two_phase", True):
+        raise ModelRangeError(f"the {model.name} model has no two-phase region: there is no saturation "
+                              f"state. Choose a cubic or reference model to see condensation.")
+    T = np.asarray(T, dtype=float)
+    if np.any(T >= Tc):
+        bad = float(np.max(T))
+        raise ModelRangeError(
+            f"saturation for {'/'.join(model.components)} ({model.name}) at T = {bad:.4f} K: at or above the "
+            f"model's critical temperature {Tc:.4f} K there is no saturation state. Treat this state as "
+            f"supercritical (p above pc) or gas.")
+
+
+def grid_guess(model, T, crit, x):
+    """Starting (rho_liq, rho_vap) [mol m-3] by the equal-mu construction on tabulated branches."""
+    T = np.atleast_1d(np.asarray(T, dtype=float))
+    x1 = np.asarray(x, dtype=float).reshape(-1, len(model.components))[0]
+    rmax = float(model.max_density(x1))
+    base = np.concatenate([np.geomspace(1e-15 * rmax, rmax, 500), np.linspace(crit.rho, rmax, 1500),
+                           rmax * (1.0 - np.logspace(-12, -0.5, 200))])
+    off = np.logspace(-8, -0.3, 120)
+    grid = np.unique(np.concatenate([base, crit.rho * (1 - off), crit.rho * (1 + off)]))
+    grid = grid[(grid > 0) & (grid < rmax)]
+    rl, rv = np.empty_like(T), np.empty_like(T)
+    xx = np.broadcast_to(x1, grid.shape + (len(model.components),))
+    for i, Ti in enumerate(T):
+        J, K, dJ = _JK(model, np.full(grid.shape, Ti), grid, xx)
+        unstable = np.nonzero(~(dJ > 0))[0]
+        if unstable.size == 0:
+            raise ConvergenceError(f"{model.name}: no van der Waals loop found at T = {Ti:.6f} K "
+                                   f"(too close to the critical point for the grid)",
+                                   SolverReport(False, 0, float("nan"), "grid saturation guess"))
+        iv, il = unstable[0], unstable[-1]
+        Jv, Kv = J[:iv], K[:iv]
+        Jl, Kl = J[il + 1:], K[il + 1:]
+        rl_br, rv_br = grid[il + 1:], grid[:iv]
+        lo = np.log(max(Jl[0], Jv[0]) if Jl[0] > 0 else Jv[0])
+        hi = np.log(min(Jv[-1], Jl[-1]))
+        lnJv = np.log(Jv)
+        for _ in range(200):
+            mid = 0.5 * (lo + hi)
+            dk = np.interp(mid, lnJv, Kv) - np.interp(np.exp(mid), Jl, Kl)
+            if dk < 0:
+                lo = mid
+            else:
+                hi = mid
+            if hi - lo < 1e-14:
+                break
+        Jm = np.exp(0.5 * (lo + hi))
+        rv[i] = np.exp(np.interp(np.log(Jm), lnJv, np.log(rv_br)))
+        rl[i] = np.interp(Jm, Jl, rl_br)
+    return rl, rv
+
+
+def _newton(model, T, rl, rv, x, tol, max_iter):
+    """Newton on the Maxwell conditions, element-wise convergence; returns (rho_L, rho_V, report)."""
+    rl, rv = rl.copy(), rv.copy()
+    res = prev = np.full(rl.shape, np.inf)
+    done = np.zeros(rl.shape, dtype=bool)
+    for it in range(1, max_iter + 1):
+        JL, KL, dL = _JK(model, T, rl, x)
+        JV, KV, dV = _JK(model, T, rv, x)
+        F1, F2 = JV - JL, KV - KL
+        # pressure residual relative to p_V, floored at the liquid's own precision (dJ/drho rho_L eps)
+        scale = np.maximum(np.abs(JV), 1e-14 * np.abs(dL) * rl)
+        prev, res = res, np.abs(F1) / scale + np.abs(F2)
+        a, b, c, d = dV, -dL, dV / rv, -dL / rl
+        det = a * d - b * c
+        du = np.where(done, 0.0, (-F1 * d + b * F2) / det)
+        dv = np.where(done, 0.0, (-a * F2 + c * F1) / det)
+        lam = np.ones_like(rv)  # damping: keep 0 < rho_V < rho_L
+        for _ in range(30):
+            nv, nl = rv + lam * du, rl + lam * dv
+            bad = (nv <= 0) | (nl <= nv) | ~np.isfinite(nv) | ~np.isfinite(nl)
+            if not np.any(bad):
+                break
+            lam = np.where(bad, 0.5 * lam, lam)
+        rv, rl = rv + lam * du, rl + lam * dv
+        small = np.abs(du) / rv + np.abs(dv) / rl
+        # round-off floor: near the triple point p_V is tiny against the liquid's internal pressure
+        # scale, near Tc the conditions become degenerate; a relative step below 1e-12, or a residual
+        # below 1e-10 that no longer halves, is as converged as double precision allows
+        done |= (res < tol) | (small < 1e-12) | ((res < 1e-10) & (res > 0.5 * prev))
+        if np.all(done):
+            if np.any(rl <= rv * (1.0 + 1e-9)):
+                raise ConvergenceError(f"{model.name}: saturation collapsed to the trivial solution rho_L = rho_V",
+                                       SolverReport(False, it, float(np.max(res)), "Newton on Maxwell conditions"))
+            return rl, rv, SolverReport(True, it, float(np.max(res)), "Newton on Maxwell conditions (rho_L, rho_V)")
+    raise ConvergenceError(f"{model.name}: saturation did not converge",
+                           SolverReport(False, max_iter, float(np.max(res)), "Newton on Maxwell conditions (rho_L, rho_V)"))
+
+
+def saturation_pressure(model, T, crit, x=(1.0,), *, tol=1e-13, max_iter=60, guess=None) -> Saturation:
+    """Saturation pressure and coexisting densities of a pure fluid at temperature(s) T.
+
+    Parameters
+    ----------
+    model : Model
+    T : float or ndarray [K]
+    crit : CriticalPoint
+        The model's own critical point [K, Pa, mol m-3].
+    x : array_like (1,)
+        Composition of the pure fluid, [1.0].
+    tol : float
+        Residual tolerance on the Maxwell conditions [-].
+    guess : tuple of ndarray, optional
+        Starting (rho_liq, rho_vap) [mol m-3], e.g. from a neighbouring temperature.
+
+    Returns
+    -------
+    Saturation
+
+    Raises
+    ------
+    ModelRangeError
+        At or above the model's critical temperature, or for models without a two-phase region.
+    ConvergenceError
+        If Newton fails (never observed in the documented range).
+    """
+    scalar = np.ndim(T) == 0
+    T = np.atleast_1d(np.asarray(T, dtype=float))
+    if np.any(~np.isfinite(T)) or np.any(T <= 0):
+        raise InputError("temperature must be a finite positive number of kelvin", "T")
+    _no_saturation(model, T, crit.T)
+    xx = np.broadcast_to(np.asarray(x, dtype=float), T.shape + (len(model.components),))
+    if guess is not None:
+        rl, rv = (np.broadcast_to(np.asarray(g, dtype=float), T.shape).copy() for g in guess)
+    elif hasattr(model, "saturation_guess"):
+        rl, rv = (np.asarray(g, dtype=float) for g in model.saturation_guess(T))
+    else:
+        rl, rv = grid_guess(model, T, crit, xx)
+    try:
+        rl, rv, rep = _newton(model, T, rl, rv, xx, tol, max_iter)
+    except ConvergenceError:
+        if guess is None and not hasattr(model, "saturation_guess"):
+            raise
+        rl, rv = grid_guess(model, T, crit, xx)
+        rl, rv, rep = _newton(model, T, rl, rv, xx, tol, max_iter)
+    R = model.R(xx)
+    p = rv * R * T * (1.0 + model.alphar_derivs(T, rv, xx).A01)
+    if scalar:
+        return Saturation(float(T[0]), float(p[0]), float(rl[0]), float(rv[0]), rep)
+    return Saturation(T, p, rl, rv, rep)
+
+
+def saturation_temperature(model, p, crit, x=(1.0,), *, T_min=None, tol=1e-12, max_iter=60) -> Saturation:
+    """Saturation temperature and coexisting densities of a pure fluid at pressure(s) p.
+
+    Newton on T with the Clapeyron slope dp/dT = (h_V - h_L)/(T (v_V - v_L)), safeguarded by a
+    bracket [T_min, Tc); each inner saturation solve is warm-started from the previous one.
+
+    Raises
+    ------
+    ModelRangeError
+        At or above the model's critical pressure (no saturation state) or below the pressure at T_min.
+    """
+    scalar = np.ndim(p) == 0
+    p = np.atleast_1d(np.asarray(p, dtype=float))
+    if np.any(~np.isfinite(p)) or np.any(p <= 0):
+        raise InputError("pressure must be a finite positive absolute pressure", "p")
+    if not getattr(model, "has_two_phase", True):
+        _no_saturation(model, np.array([0.0]), crit.T)
+    if np.any(p >= crit.p):
+        raise ModelRangeError(
+            f"saturation for {'/'.join(model.components)} ({model.name}) at p = {np.max(p) / 1e5:.4f} bar: at or "
+            f"above the model's critical pressure {crit.p / 1e5:.4f} bar there is no saturation state.")
+    T_lo = np.full(p.shape, T_min if T_min is not None else 0.5 * crit.T)
+    T_hi = np.full(p.shape, crit.T)
+    s_lo = saturation_pressure(model, T_lo, crit, x)
+    if np.any(p < s_lo.p * (1.0 - 1e-10)):
+        raise ModelRangeError(
+            f"saturation for {'/'.join(model.components)} at p = {np.min(p):.4g} Pa: below the saturation "
+            f"pressure {np.min(s_lo.p):.4g} Pa at the lowest temperature supported ({T_lo[0]:.2f} K).")
+    # start: ln p linear in 1/T between (T_lo, p_lo) and the critical point
+    inv = 1.0 / T_lo + (np.log(p) - np.log(s_lo.p)) / (np.log(crit.p) - np.log(s_lo.p)) * (1.0 / crit.T - 1.0 / T_lo)
+    T = np.clip(1.0 / inv, T_lo, crit.T - 1e-6)
+    sat = saturation_pressure(model, T, crit, x)
+    xx = np.broadcast_to(np.asarray(x, dtype=float), T.shape + (len(model.components),))
+    R = model.R(xx)
+    for it in range(1, max_iter + 1):
+        f = np.log(sat.p / p)
+        T_lo = np.where(f < 0, T, T_lo)
+        T_hi = np.where(f > 0, T, T_hi)
+        if np.max(np.abs(f)) < tol:
+            rep = SolverReport(True, it, float(np.max(np.abs(f))), "Newton on T with Clapeyron slope")
+            if scalar:
+                return Saturation(float(T[0]), float(sat.p[0]), float(sat.rho_liq[0]), float(sat.rho_vap[0]), rep)
+            return Saturation(T, sat.p, sat.rho_liq, sat.rho_vap, rep)
+        dL = model.alphar_derivs(T, sat.rho_liq, xx)
+        dV = model.alphar_derivs(T, sat.rho_vap, xx)
+        dh = R * T * ((dV.A10 + dV.A01) - (dL.A10 + dL.A01))
+        dv = 1.0 / sat.rho_vap - 1.0 / sat.rho_liq
+        dlnp_dinvT = -T * T * dh / (T * dv) / sat.p  # Clapeyron, in ln p against 1/T (nearly linear)
+        T_new = 1.0 / (1.0 / T - f / dlnp_dinvT)
+        out = ~((T_new > T_lo) & (T_new < T_hi)) | ~np.isfinite(T_new)
+        T_new = np.where(out, 0.5 * (T_lo + T_hi), T_new)
+        T_new = np.minimum(T_new, crit.T - 1e-9)
+        stalled = np.max(np.abs(T_new - T) / T) < 1e-13
+        try:
+            sat = saturation_pressure(model, T_new, crit, x, guess=(sat.rho_liq, sat.rho_vap))
+        except ConvergenceError:
+            sat = saturation_pressure(model, T_new, crit, x)
+        T = T_new
+        if stalled:  # the temperature no longer moves: round-off floor of ln psat
+            f = np.log(sat.p / p)
+            rep = SolverReport(True, it, float(np.max(np.abs(f))), "Newton on T with Clapeyron slope")
+            if scalar:
+                return Saturation(float(T[0]), float(sat.p[0]), float(sat.rho_liq[0]), float(sat.rho_vap[0]), rep)
+            return Saturation(T, sat.p, sat.rho_liq, sat.rho_vap, rep)
+    raise ConvergenceError(f"{model.name}: saturation temperature did not converge",
+                           SolverReport(False, max_iter, float(np.max(np.abs(f))), "Newton on T with Clapeyron slope"))

@@ -1,0 +1,204 @@
+"""States are values: one frozen object per (batch of) state(s), with properties derived on demand.
+
+A :class:`State` holds T, overall density, composition and phase for one state or a batch (arrays
+of equal shape). Two-phase elements carry their coexisting phase densities and compositions and
+the molar vapour fraction; their h, s, u, g and density are phase-weighted averages. Properties that
+have no single value inside the two-phase region (cp, cv, w, mu_JT, kappa_T, alpha_p) raise
+:class:`~supercrit.errors.PropertyUndefinedError` there instead of returning NaN.
+"""
+from __future__ import annotations
+
+import enum
+import functools
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import PropertyUndefinedError
+from .properties import all_properties
+
+
+class Phase(enum.Enum):
+    """Phase label; ``str(Phase.GAS) == "gas"``."""
+
+    GAS = "gas"
+    LIQUID = "liquid"
+    SUPERCRITICAL = "supercritical"
+    TWO_PHASE = "two-phase"
+
+    def __str__(self) -> str:
+        return self.value
+
+
+PHASES = (Phase.GAS, Phase.LIQUID, Phase.SUPERCRITICAL, Phase.TWO_PHASE)
+GAS, LIQUID, SUPERCRITICAL, TWO_PHASE = range(4)
+
+
+def _out(a):
+    a = np.asarray(a)
+    return a.item() if a.ndim == 0 else a
+
+
+@dataclass(frozen=True, eq=False)
+class State:
+    """A thermodynamic state or a batch of states (never re-solved, never mutated).
+
+    Attributes (SI; arrays for a batch)
+    ------------------------------------
+    T [K], p [Pa], rho_molar [mol m-3], rho_mass [kg m-3], Z [-], h, u, g [J mol-1] and h_mass,
+    u_mass, g_mass [J kg-1], s, cp, cv [J mol-1 K-1] and s_mass, cp_mass, cv_mass [J kg-1 K-1],
+    w [m s-1], mu_jt [K Pa-1], kappa_T [Pa-1], alpha_p [K-1], M [kg mol-1], phase (Phase),
+    vapor_fraction [mol mol-1], composition (dict name -> mole fraction), liquid and vapor (States,
+    two-phase only). Enthalpy and entropy use supercrit's reference state (ideal gas, 298.15 K,
+    101325 Pa, h = s = 0 for each pure component).
+    """
+
+    model: object
+    ideal: object
+    M_i: np.ndarray  # [kg mol-1], (nc,)
+    T_: np.ndarray
+    rho_: np.ndarray
+    x_: np.ndarray  # (..., nc)
+    phase_: np.ndarray  # int codes, see PHASES
+    q_: np.ndarray | None = None  # molar vapour fraction (two-phase elements)
+    rho_l_: np.ndarray | None = None
+    rho_v_: np.ndarray | None = None
+    x_l_: np.ndarray | None = None
+    x_v_: np.ndarray | None = None
+
+    # -- structure ---------------------------------------------------------------------
+    @property
+    def components(self) -> tuple[str, ...]:
+        return tuple(self.model.components)
+
+    @property
+    def shape(self) -> tuple[int, ...]:
+        return np.shape(self.T_)
+
+    @functools.cached_property
+    def _two(self) -> np.ndarray:
+        return np.asarray(self.phase_) == TWO_PHASE
+
+    @functools.cached_property
+    def _single(self) -> dict:
+        return all_properties(self.model, self.ideal, self.M_i, self.T_, self.rho_, self.x_)
+
+    @functools.cached_property
+    def _phases(self) -> tuple[dict, dict]:
+        L = all_properties(self.model, self.ideal, self.M_i, self.T_, self.rho_l_, self.x_l_)
+        V = all_properties(self.model, self.ideal, self.M_i, self.T_, self.rho_v_, self.x_v_)
+        return L, V
+
+    def _avg(self, key: str):
+        """Molar property of the state: phase-weighted where two-phase."""
+        if not np.any(self._two):
+            return self._single[key]
+        L, V = self._phases
+        q = self.q_
+        mix = (1.0 - q) * L[key] + q * V[key]
+        return np.where(self._two, mix, self._single[key]) if np.ndim(self._two) else mix
+
+    def _single_only(self, key: str):
+        if np.any(self._two):
+            n = int(np.sum(self._two))
+            raise PropertyUndefinedError(
+                f"{key} has no single value inside the two-phase region ({n} state(s) two-phase); "
+                f"use the liquid and vapor states' values")
+        return _out(self._single[key])
+
+    # -- properties ----------------------------------------------------------------------
+    @property
+    def T(self):
+        return _out(self.T_)
+
+    @property
+    def p(self):
+        if not np.any(self._two):
+            return _out(self._single["p"])
+        return _out(np.where(self._two, self._phases[1]["p"], self._single["p"]) if np.ndim(self._two)
+                    else self._phases[1]["p"])
+
+    @property
+    def rho_molar(self):
+        return _out(self.rho_)
+
+    @property
+    def M(self):
+        return _out(self.x_ @ self.M_i)
+
+    @property
+    def rho_mass(self):
+        return _out(self.rho_ * (self.x_ @ self.M_i))
+
+    @property
+    def Z(self):
+        return _out(np.asarray(self.p) / (self.rho_ * self.model.R(self.x_) * self.T_))
+
+    h = property(lambda self: _out(self._avg("h")), doc="Molar enthalpy [J mol-1].")
+    s = property(lambda self: _out(self._avg("s")), doc="Molar entropy [J mol-1 K-1].")
+    u = property(lambda self: _out(self._avg("h") - np.asarray(self.p) / self.rho_), doc="Molar internal energy [J mol-1].")
+    g = property(lambda self: _out(self._avg("h") - self.T_ * self._avg("s")), doc="Molar Gibbs energy [J mol-1].")
+    h_mass = property(lambda self: _out(self._avg("h") / (self.x_ @ self.M_i)), doc="[J kg-1]")
+    s_mass = property(lambda self: _out(self._avg("s") / (self.x_ @ self.M_i)), doc="[J kg-1 K-1]")
+    u_mass = property(lambda self: _out(np.asarray(self.u) / (self.x_ @ self.M_i)), doc="[J kg-1]")
+    g_mass = property(lambda self: _out(np.asarray(self.g) / (self.x_ @ self.M_i)), doc="[J kg-1]")
+    cp = property(lambda self: self._single_only("cp"), doc="[J mol-1 K-1]")
+    cv = property(lambda self: self._single_only("cv"), doc="[J mol-1 K-1]")
+    cp_mass = property(lambda self: _out(np.asarray(self.cp) / (self.x_ @ self.M_i)), doc="[J kg-1 K-1]")
+    cv_mass = property(lambda self: _out(np.asarray(self.cv) / (self.x_ @ self.M_i)), doc="[J kg-1 K-1]")
+    w = property(lambda self: self._single_only("w"), doc="Speed of sound [m s-1].")
+    mu_jt = property(lambda self: self._single_only("mu_jt"), doc="Joule-Thomson coefficient [K Pa-1].")
+    kappa_T = property(lambda self: self._single_only("kappa_T"), doc="Isothermal compressibility [Pa-1].")
+    alpha_p = property(lambda self: self._single_only("alpha_p"), doc="Isobaric thermal expansion [K-1].")
+
+    @property
+    def phase(self):
+        """Phase label (a Phase; an object array of Phase for a batch)."""
+        codes = np.asarray(self.phase_)
+        if codes.ndim == 0:
+            return PHASES[int(codes)]
+        out = np.empty(codes.shape, dtype=object)
+        for i, ph in enumerate(PHASES):
+            out[codes == i] = ph
+        return out
+
+    @property
+    def vapor_fraction(self):
+        """Molar vapour fraction [-]: 1 for gas, 0 for liquid, between for two-phase.
+
+        Raises PropertyUndefinedError for supercritical states: one phase, neither vapour nor liquid.
+        """
+        codes = np.asarray(self.phase_)
+        if np.any(codes == SUPERCRITICAL):
+            raise PropertyUndefinedError("vapour fraction is undefined for a supercritical state (one dense "
+                                         "phase, neither vapour nor liquid)")
+        q = np.where(codes == GAS, 1.0, 0.0)
+        if np.any(self._two):
+            q = np.where(self._two, self.q_, q)
+        return _out(q)
+
+    @property
+    def composition(self) -> dict:
+        """Mole fractions by component (floats for a state, arrays for a batch)."""
+        return {n: _out(self.x_[..., i]) for i, n in enumerate(self.components)}
+
+    def _phase_state(self, which: str) -> "State":
+        if not np.all(self._two):
+            raise PropertyUndefinedError(f"{which} exists only for two-phase states; this state is "
+                                         f"{self.phase if np.ndim(self.phase_) == 0 else 'not all two-phase'}")
+        rho, x, code = ((self.rho_l_, self.x_l_, LIQUID) if which == "liquid" else (self.rho_v_, self.x_v_, GAS))
+        return State(self.model, self.ideal, self.M_i, self.T_, rho, x, np.full(np.shape(self.T_), code))
+
+    @property
+    def liquid(self) -> "State":
+        return self._phase_state("liquid")
+
+    @property
+    def vapor(self) -> "State":
+        return self._phase_state("vapor")
+
+    def __repr__(self) -> str:
+        if np.ndim(self.T_) == 0:
+            return (f"State({'/'.join(self.components)}, {self.model.name}: T={float(self.T_):.3f} K, "
+                    f"p={float(self.p) / 1e5:.4f} bar, rho={float(self.rho_mass):.3f} kg/m3, phase={self.phase})")
+        return f"State({'/'.join(self.components)}, {self.model.name}: batch of {np.size(self.T_)})"
