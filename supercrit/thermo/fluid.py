@@ -69,34 +69,20 @@ def _composition(composition) -> tuple[tuple[Component, ...], np.ndarray]:
     return tuple(comps), x / total
 
 
-def _kij_matrix(comps, kij) -> np.ndarray:
-    nc = len(comps)
-    k = np.zeros((nc, nc))
-    if not kij:
-        return k
-    if not isinstance(kij, Mapping):
+def _kij_matrix(comps, kij, model_name: str = "peng-robinson") -> np.ndarray:
+    """k_ij from data/kij.yaml for the model's table, with user values on top.
+
+    ``kij`` maps pairs ``{"CO2": {"N2": -0.02}}``; the extra key ``"set"`` chooses a named source set
+    for every pair that has one (``{"set": "dechema"}``; see data/kij.yaml).
+    """
+    from .kij import kij_matrix
+
+    names = [c.name for c in comps]
+    if kij is not None and not isinstance(kij, Mapping):
         raise InputError("kij must be a nested mapping such as {'CO2': {'N2': -0.036}}", "kij")
-    index = {c.name: i for i, c in enumerate(comps)}
-    for a, row in kij.items():
-        if not isinstance(row, Mapping):
-            raise InputError(f"kij[{a!r}] must map partner components to values", "kij")
-        for b, val in row.items():
-            ia, ib = index.get(get_component(a).name), index.get(get_component(b).name)
-            if ia is None or ib is None:
-                missing = a if ia is None else b
-                raise InputError(f"kij names {missing!r}, which is not in the composition", "kij")
-            if ia == ib:
-                raise InputError(f"kij of {a} with itself is meaningless; give pairs of different components", "kij")
-            try:
-                v = float(val)
-            except (TypeError, ValueError):
-                raise InputError(f"kij[{a}][{b}] = {val!r} is not a number", "kij") from None
-            if not -1.0 < v < 1.0:
-                raise InputError(f"kij[{a}][{b}] = {v} is outside (-1, 1)", "kij")
-            if k[ia, ib] != 0.0 and k[ia, ib] != v:
-                raise InputError(f"kij for {a}-{b} is given twice with different values", "kij")
-            k[ia, ib] = k[ib, ia] = v
-    return k
+    overrides = dict(kij or {})
+    source_set = overrides.pop("set", None)
+    return kij_matrix(names, model_name, overrides or None, source_set)
 
 
 class Fluid:
@@ -138,7 +124,7 @@ class Fluid:
         self.components: tuple[str, ...] = tuple(c.name for c in comps)
         self.x = x
         self._comps = comps
-        self.kij = _kij_matrix(comps, kij)
+        self.kij = _kij_matrix(comps, kij, self.model_name)
         self.model = build_model(self.model_name, comps, self.kij)
         self.ideal = IdealGasParts.from_components(comps)
         self.M_i = np.array([c.M for c in comps])
@@ -287,6 +273,10 @@ class Fluid:
             return mixture_state_p_prop(self, p, target, key)
         lo, hi = self._T_limits()
         comp = self._comps[0] if self.is_pure else None
+        if self.model_name == "span-wagner" and np.any(p < comp.pt):
+            from .solvers.solid_flash import state_p_prop_with_solid  # solid CO2 below the triple point
+
+            return state_p_prop_with_solid(self, p, target, key)
         results = []
         for pi, ti in zip(p.ravel(), target.ravel()):
             r = flash_p_prop(self.model, self.ideal, self.M_i, self.x, float(pi), float(ti), key, self._crit,
