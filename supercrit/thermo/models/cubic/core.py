@@ -13,6 +13,7 @@ conditions (triple root of the cubic in Z) and are computed, not typed, in :func
 from __future__ import annotations
 
 import functools
+import math as _math
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -48,31 +49,49 @@ def critical_constants(delta1: float, delta2: float) -> tuple[float, float, floa
 
 
 def _cubic_real_roots(a2, a1, a0):
-    """Real roots of z^3 + a2 z^2 + a1 z + a0 = 0, vectorised; shape (..., 3), NaN where complex."""
+    """Real roots of z^3 + a2 z^2 + a1 z + a0 = 0, vectorised; shape (..., 3) ascending, NaN where complex.
+
+    The root of largest magnitude comes from the trigonometric/Cardano form; the other two from the
+    deflated quadratic z^2 + (a2 + r1) z - a0/r1 = 0 by the cancellation-free formula, so that tiny
+    roots (liquid Z ~ B at very low pressure) keep full relative precision. Two Newton steps polish.
+    """
     a2, a1, a0 = np.broadcast_arrays(*(np.asarray(v, dtype=float) for v in (a2, a1, a0)))
     P = a1 - a2 * a2 / 3.0
     Q = 2.0 * a2**3 / 27.0 - a2 * a1 / 3.0 + a0
     D = (Q / 2.0) ** 2 + (P / 3.0) ** 3
     shift = -a2 / 3.0
-    out = np.full(a2.shape + (3,), np.nan)
     one = D > 0
     sq = np.sqrt(np.where(one, D, 0.0))
-    t1 = np.cbrt(-Q / 2.0 + sq) + np.cbrt(-Q / 2.0 - sq)
-    out[..., 0] = np.where(one, t1 + shift, np.nan)
-    three = ~one
-    Pm = np.where(three, np.minimum(P, -1e-300), -1.0)
+    u = -Q / 2.0
+    # Cardano with the larger-magnitude cube root first (no cancellation)
+    c1 = np.cbrt(u + np.where(u >= 0, sq, -sq))
+    c2 = np.where(c1 != 0, -P / (3.0 * np.where(c1 != 0, c1, 1.0)), 0.0)
+    r_one = c1 + c2 + shift
+    Pm = np.where(one, -1.0, np.minimum(P, -1e-300))
     r = 2.0 * np.sqrt(-Pm / 3.0)
     arg = np.clip(3.0 * Q / (Pm * r), -1.0, 1.0)
     phi = np.arccos(arg) / 3.0
-    for k in range(3):
-        out[..., k] = np.where(three, r * np.cos(phi - 2.0 * np.pi * k / 3.0) + shift, out[..., k])
-    # polish every root with two Newton steps on the polynomial
-    for _ in range(2):
-        z = out
-        f = ((z + a2[..., None]) * z + a1[..., None]) * z + a0[..., None]
-        df = (3.0 * z + 2.0 * a2[..., None]) * z + a1[..., None]
-        step = np.where(np.abs(df) > 0, f / np.where(df == 0, 1.0, df), 0.0)
-        out = z - step
+    trig = np.stack([r * np.cos(phi - 2.0 * np.pi * k / 3.0) + shift for k in range(3)], axis=-1)
+    big_idx = np.argmax(np.abs(trig), axis=-1)
+    r_three = np.take_along_axis(trig, big_idx[..., None], axis=-1)[..., 0]
+    r1 = np.where(one, r_one, r_three)
+    # deflate: the other two roots solve z^2 + b z + c = 0 with b = a2 + r1, c = -a0 / r1
+    r1s = np.where(r1 != 0, r1, 1.0)
+    b = a2 + r1
+    c = np.where(r1 != 0, -a0 / r1s, a1)
+    disc = b * b - 4.0 * c
+    real2 = disc >= 0
+    sd = np.sqrt(np.where(real2, disc, 0.0))
+    q = -0.5 * (b + np.where(b >= 0, sd, -sd))
+    qs = np.where(q != 0, q, 1.0)
+    r2 = np.where(real2 & (q != 0), q, np.where(real2, 0.0, np.nan))
+    r3 = np.where(real2 & (q != 0), c / qs, np.where(real2, 0.0, np.nan))
+    out = np.stack([r1, r2, r3], axis=-1)
+    for _ in range(2):  # Newton polish on the cubic
+        f = ((out + a2[..., None]) * out + a1[..., None]) * out + a0[..., None]
+        df = (3.0 * out + 2.0 * a2[..., None]) * out + a1[..., None]
+        ok = np.isfinite(df) & (df != 0)
+        out = out - np.where(ok, f / np.where(ok, df, 1.0), 0.0)
     return np.sort(out, axis=-1)
 
 
@@ -227,3 +246,193 @@ class CubicModel:
                                   f"critical-point solver, not from the pure-component constants")
         return self.crit
 
+
+
+def _cubic_roots_scalar(a2: float, a1: float, a0: float) -> list:
+    """Real roots of z^3 + a2 z^2 + a1 z + a0 (Python floats, ascending), each polished by Newton steps."""
+    P = a1 - a2 * a2 / 3.0
+    Q = 2.0 * a2 * a2 * a2 / 27.0 - a2 * a1 / 3.0 + a0
+    D = 0.25 * Q * Q + P * P * P / 27.0
+    shift = -a2 / 3.0
+    if D > 0.0:
+        sq = _math.sqrt(D)
+        u, v = -0.5 * Q + sq, -0.5 * Q - sq
+        u = u ** (1.0 / 3.0) if u >= 0.0 else -((-u) ** (1.0 / 3.0))
+        v = v ** (1.0 / 3.0) if v >= 0.0 else -((-v) ** (1.0 / 3.0))
+        roots = [u + v + shift]
+    else:
+        r = 2.0 * _math.sqrt(-P / 3.0) if P < 0.0 else 0.0
+        arg = 3.0 * Q / (P * r) if r > 0.0 else 0.0
+        phi = _math.acos(-1.0 if arg < -1.0 else (1.0 if arg > 1.0 else arg)) / 3.0
+        t = 2.0 * _math.pi / 3.0
+        roots = [r * _math.cos(phi - t) + shift, r * _math.cos(phi - 2.0 * t) + shift, r * _math.cos(phi) + shift]
+        roots.sort()
+    out = []
+    for z in roots:
+        for _ in range(2):
+            df = (3.0 * z + 2.0 * a2) * z + a1
+            if df == 0.0:
+                break
+            z -= (((z + a2) * z + a1) * z + a0) / df
+        out.append(z)
+    return out
+
+
+class CubicPhaseKernel:
+    """Fugacity coefficients of one cubic model at fixed T, for any (p, x), with analytic derivatives.
+
+    Built by :meth:`CubicModel.phase_kernel`. Works on the untranslated cubic: a constant Peneloux
+    shift c_i changes ln phi_i by -c_i p/(R T) in every phase alike, so K-values, stability and phase
+    splits are those of the untranslated model; densities are returned translated.
+    Formulas: Michelsen & Mollerup, Thermodynamic Models (2nd ed., 2007), ch. 3 (F = A_r/(RT) in
+    (T, V, n) and its derivatives for two-parameter cubics with vdW1 mixing).
+    """
+
+    def __init__(self, model: "CubicModel", T: float):
+        T = float(T)
+        self.T = T
+        self.R = float(model.gas_constant)
+        self.RT = self.R * T
+        q, dq, _ = model.alpha.q(np.array([T]))
+        sac = np.sqrt(model.ac)
+        Q, dQ = sac * q[0], sac * dq[0]
+        omk = model._omk
+        self.aij = omk * np.outer(Q, Q)  # [Pa m6 mol-2]
+        self.daij = omk * (np.outer(dQ, Q) + np.outer(Q, dQ))  # [Pa m6 mol-2 K-1]
+        self.b = np.asarray(model.b, dtype=float)
+        self.c = np.asarray(model.c, dtype=float)
+        self.d1, self.d2 = float(model.delta1), float(model.delta2)
+        self.s, self.P = self.d1 + self.d2, self.d1 * self.d2
+
+    # -- volume roots ------------------------------------------------------------------
+    def _roots(self, a, bm, p):
+        RT = self.RT
+        p = float(p)
+        A, B = a * p / (RT * RT), bm * p / RT
+        s, P = self.s, self.P
+        zs = _cubic_roots_scalar((s - 1.0) * B - 1.0, A + P * B * B - s * B * (B + 1.0),
+                                 -(A * B + P * B * B * (B + 1.0)))
+        zs = [z for z in zs if z > B]
+        return zs, A, B
+
+    def _gres(self, Z, A, B):
+        """Residual Gibbs energy (g - g_ig(T, p))/RT of a root [-]."""
+        import math
+
+        if self.d1 != self.d2:
+            L = math.log((Z + self.d1 * B) / (Z + self.d2 * B)) / (B * (self.d1 - self.d2))
+        else:
+            L = 1.0 / (Z + self.d1 * B)
+        return Z - 1.0 - math.log(Z - B) - A * L
+
+    def pick_Z(self, a, bm, p, phase):
+        """Z of the chosen root: phase 'liq' (smallest), 'vap' (largest) or 'stable' (lowest g)."""
+        zs, A, B = self._roots(a, bm, p)
+        if not zs:
+            raise ArithmeticError("no volume root above the co-volume")
+        if len(zs) == 1 or phase == "vap":
+            return zs[-1], A, B
+        if phase == "liq":
+            return zs[0], A, B
+        gl, gv = self._gres(zs[0], A, B), self._gres(zs[-1], A, B)
+        return (zs[0] if gl < gv else zs[-1]), A, B
+
+    # -- fugacity coefficients ---------------------------------------------------------
+    def ln_phi(self, x, p, phase="stable"):
+        """(ln phi [-] (nc,), Z [-], g_res/RT [-]) at p [Pa], mole fractions x (nc,)."""
+        import math
+
+        ax = self.aij @ x
+        a = float(x @ ax)
+        bm = float(self.b @ x)
+        Z, A, B = self.pick_Z(a, bm, p, phase)
+        if self.d1 != self.d2:
+            L = math.log((Z + self.d1 * B) / (Z + self.d2 * B)) / (B * (self.d1 - self.d2))
+        else:
+            L = 1.0 / (Z + self.d1 * B)
+        bb = self.b / bm
+        lnphi = bb * (Z - 1.0) - math.log(Z - B) - A * L * (2.0 * ax / a - bb)
+        return lnphi, Z, Z - 1.0 - math.log(Z - B) - A * L
+
+    def ln_phi_and_derivs(self, x, p, phase="stable"):
+        """ln phi and derivatives at (T, p, x) for one mole of phase.
+
+        Returns
+        -------
+        lnphi : (nc,) [-]
+        dn : (nc, nc) [-]
+            n d ln phi_i / d n_j at constant T, p (symmetric; equals Michelsen's n-scaled matrix).
+        dT : (nc,) [K-1]
+            d ln phi_i / dT at constant p, n.
+        dP : (nc,) [Pa-1]
+            d ln phi_i / dp at constant T, n.
+        V : float
+            Untranslated molar volume [m3 mol-1].
+        """
+        R, T = self.R, self.T
+        RT = self.RT
+        b = self.b
+        ax = self.aij @ x
+        a = float(x @ ax)
+        Bm = float(b @ x)
+        Z, _, _ = self.pick_Z(a, Bm, p, phase)
+        V = Z * RT / p
+        d1, d2 = self.d1, self.d2
+        e1, e2 = V + d1 * Bm, V + d2 * Bm
+        VB = V - Bm
+        if d1 != d2:
+            f = np.log(e1 / e2) / (R * Bm * (d1 - d2))
+        else:
+            f = 1.0 / (R * e1)
+        fV = -1.0 / (R * e1 * e2)
+        fB = -(f + V * fV) / Bm
+        fVV = -fV * (1.0 / e1 + 1.0 / e2)
+        fVB = -(2.0 * fV + V * fVV) / Bm
+        fBB = -(2.0 * fB + V * fVB) / Bm
+        g = np.log1p(-Bm / V)
+        gV = Bm / (V * VB)
+        gB = -1.0 / VB
+        gBV = 1.0 / VB ** 2
+        gBB = -1.0 / VB ** 2
+        gVV = -1.0 / VB ** 2 + 1.0 / V ** 2
+        D = a
+        Di = 2.0 * ax
+        DT = float(x @ self.daij @ x)
+        DiT = 2.0 * (self.daij @ x)
+        n = 1.0
+        FB = -n * gB - D / T * fB
+        FD = -f / T
+        Fi = -g + FB * b + FD * Di
+        FnB = -gB
+        FBD = -fB / T
+        FBB = -n * gBB - D / T * fBB
+        Fij = FnB * (b[:, None] + b[None, :]) + FBD * (np.outer(b, Di) + np.outer(Di, b)) \
+            + FBB * np.outer(b, b) + FD * 2.0 * self.aij
+        FBV = -n * gBV - D / T * fVB
+        FiV = -gV + FBV * b - fV / T * Di
+        FVV = -n * gVV - D / T * fVV
+        dPdV = RT * (-FVV - n / V ** 2)
+        dPdn = RT * (-FiV + 1.0 / V)
+        Vi = -dPdn / dPdV
+        lnphi = Fi - np.log(Z)
+        dn = n * Fij + 1.0 + n * np.outer(dPdn, dPdn) / (RT * dPdV)
+        # temperature derivatives
+        cT = (D - T * DT) / T ** 2  # F_T = cT f; F_BT = cT fB; F_DT = f/T^2
+        FiT = cT * fB * b + f / T ** 2 * Di - f / T * DiT
+        FTV = cT * fV
+        dPdT = -RT * FTV + p / T
+        dT = FiT + 1.0 / T - Vi * dPdT / RT
+        dP = Vi / RT - 1.0 / p
+        return lnphi, dn, dT, dP, V
+
+    def density(self, x, V):
+        """Translated molar density [mol m-3] from an untranslated molar volume V [m3 mol-1]."""
+        return 1.0 / (V - float(self.c @ x))
+
+
+def _phase_kernel(self, T) -> CubicPhaseKernel:
+    """A :class:`CubicPhaseKernel` at temperature T [K] (mixture flash, stability and envelope work)."""
+    return CubicPhaseKernel(self, T)
+
+
+CubicModel.phase_kernel = _phase_kernel
