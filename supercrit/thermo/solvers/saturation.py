@@ -164,13 +164,16 @@ def saturation_pressure(model, T, crit, x=(1.0,), *, tol=1e-13, max_iter=60, gue
         If Newton fails (never observed in the documented range).
     """
     scalar = np.ndim(T) == 0
-    T = np.atleast_1d(np.asarray(T, dtype=float))
+    shape = np.shape(T)
+    T = np.atleast_1d(np.asarray(T, dtype=float)).ravel()
     if np.any(~np.isfinite(T)) or np.any(T <= 0):
         raise InputError("temperature must be a finite positive number of kelvin", "T")
+    if guess is not None:
+        guess = tuple(np.broadcast_to(np.asarray(g, dtype=float), shape).ravel() for g in guess)
     _no_saturation(model, T, crit.T)
     xx = np.broadcast_to(np.asarray(x, dtype=float), T.shape + (len(model.components),))
     if guess is not None:
-        rl, rv = (np.broadcast_to(np.asarray(g, dtype=float), T.shape).copy() for g in guess)
+        rl, rv = (g.copy() for g in guess)
     elif hasattr(model, "saturation_guess"):
         rl, rv = (np.asarray(g, dtype=float) for g in model.saturation_guess(T))
     else:
@@ -186,7 +189,7 @@ def saturation_pressure(model, T, crit, x=(1.0,), *, tol=1e-13, max_iter=60, gue
     p = rv * R * T * (1.0 + model.alphar_derivs(T, rv, xx).A01)
     if scalar:
         return Saturation(float(T[0]), float(p[0]), float(rl[0]), float(rv[0]), rep)
-    return Saturation(T, p, rl, rv, rep)
+    return Saturation(T.reshape(shape), p.reshape(shape), rl.reshape(shape), rv.reshape(shape), rep)
 
 
 def saturation_temperature(model, p, crit, x=(1.0,), *, T_min=None, tol=1e-12, max_iter=60) -> Saturation:
