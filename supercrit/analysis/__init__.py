@@ -1,0 +1,1 @@
+"""Path analysis: boundary crossings along each step, margins and verdicts."""

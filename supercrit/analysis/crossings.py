@@ -1,0 +1,228 @@
+"""Where a step's physical path crosses a boundary, located by root finding on the path parameter.
+
+A path is a function ``t -> State`` for t in [0, 1] (the step's own physics: isobaric for a heater,
+isenthalpic for a valve, constant-efficiency for a compressor) plus the samples the step took.
+Boundaries:
+
+- phase-label changes (gas, liquid, supercritical, two-phase): entering or leaving the two-phase
+  region (the saturation line of a pure fluid, the bubble or dew side of a mixture's envelope) and
+  entering or leaving the supercritical region across the critical isotherm (T = Tc above pc) or the
+  critical isobar (p = pc above Tc). Located by bisection on t until the two bracketing states differ
+  by less than 0.005 K and 500 Pa (the requirement is 0.01 K and 0.01 bar).
+- the pseudo-critical line (pure fluids above pc): T = T_pc(p), the temperature of maximum cp along
+  the isobar, found by bounded maximisation of cp(T) at that pressure;
+- the freezing boundary of CO2 (solid CO2): T = T_sub(p) below the triple-point pressure and
+  T = T_melt(p) above it, both from Span & Wagner (1996) eqs. 3.10 and 3.12. For CO2-rich mixtures the
+  pure-CO2 lines are used: an approximation (impurities depress the freezing point a little, so the
+  pure-CO2 line is the warmer, cautious choice; common practice for screening);
+- user limits: minimum design metal temperature, maximum temperature, maximum pressure.
+
+Scalar boundaries are located by Brent's method on t to 1e-10 in t.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Callable, Sequence
+
+import numpy as np
+from scipy.optimize import brentq, minimize_scalar
+
+from ..errors import ConvergenceError, ModelRangeError, SupercritError
+
+T_TOL, P_TOL = 0.005, 500.0  # [K], [Pa]: half the required 0.01 K / 0.01 bar
+
+
+@dataclass(frozen=True)
+class Crossing:
+    """One boundary crossing on a step's path.
+
+    kind: 'two-phase-entry', 'two-phase-exit', 'critical-isotherm', 'critical-isobar', 'pseudo-critical',
+    'solid-CO2', 'min-metal-T', 'max-T', 'max-p', 'model-range'; t: path parameter [-];
+    T [K], p [Pa] at the crossing; state: the State there (None for 'model-range');
+    before / after: phase labels either side; side: 'bubble', 'dew' or 'saturation' for two-phase
+    crossings; text: one sentence for the report.
+    """
+
+    kind: str
+    t: float
+    T: float
+    p: float
+    before: str
+    after: str
+    side: str = ""
+    text: str = ""
+    state: object = field(default=None, compare=False, repr=False)
+
+
+def _label(state) -> str:
+    return str(state.phase)
+
+
+def pseudo_critical_temperature(fluid, p: float) -> float:
+    """Temperature of maximum cp along the isobar p [Pa] (pure fluid, p above the model's pc) [K].
+
+    Method: a scan of cp over [Tc, Tc + 150 K] in 1 K steps, then bounded Brent maximisation around
+    the largest value to 1e-6 K.
+
+    Raises
+    ------
+    ModelRangeError
+        For mixtures or at or below the critical pressure.
+    """
+    return _pseudo_critical_T(fluid, p)
+
+
+def _pseudo_critical_T(fluid, p: float) -> float:
+    cache = fluid.__dict__.setdefault("_pseudo_critical_cache", {})
+    if p in cache:
+        return cache[p]
+    cache[p] = T = _pseudo_critical_T_solve(fluid, p)
+    return T
+
+
+def _pseudo_critical_T_solve(fluid, p: float) -> float:
+    if not fluid.is_pure:
+        raise ModelRangeError("the pseudo-critical line is computed for pure fluids only")
+    c = fluid.critical_point()
+    if p <= c.p:
+        raise ModelRangeError(f"no pseudo-critical temperature at p = {p / 1e5:.3f} bar: at or below the "
+                              f"critical pressure {c.p / 1e5:.3f} bar")
+    T = np.linspace(c.T + 0.01, c.T + 150.0, 151)
+    cp = fluid.state(T=T, p=np.full_like(T, p)).cp
+    i = int(np.argmax(cp))
+    lo, hi = T[max(i - 1, 0)], T[min(i + 1, len(T) - 1)]
+    res = minimize_scalar(lambda x: -fluid.state(T=x, p=p).cp, bounds=(lo, hi), method="bounded",
+                          options={"xatol": 1e-6})
+    return float(res.x)
+
+
+def _freeze_T(p):
+    from ..thermo.solid_co2 import TRIPLE_POINT, melting_temperature, sublimation_temperature
+
+    return float(sublimation_temperature(p)) if p < TRIPLE_POINT.p else float(melting_temperature(p))
+
+
+def _classify(a: str, b: str, pure: bool) -> tuple[str, str]:
+    pair = {a, b}
+    if "two-phase" in pair:
+        other = (pair - {"two-phase"}).pop() if len(pair) == 2 else ""
+        kind = "two-phase-entry" if b == "two-phase" else "two-phase-exit"
+        side = "saturation" if pure else {"gas": "dew", "liquid": "bubble"}.get(other, "critical")
+        return kind, side
+    if pair == {"liquid", "supercritical"}:
+        return "critical-isotherm", ""
+    if pair == {"gas", "supercritical"}:
+        return "critical-isobar", ""
+    return "phase-change", ""
+
+
+def _bisect_label(path, ta, sa, tb, sb, max_iter=80):
+    la = _label(sa)
+    for _ in range(max_iter):
+        if abs(sa.T - sb.T) < T_TOL and abs(sa.p - sb.p) < P_TOL:
+            break
+        tm = 0.5 * (ta + tb)
+        sm = path(tm)
+        if _label(sm) == la:
+            ta, sa = tm, sm
+        else:
+            tb, sb = tm, sm
+    return ta, sa, tb, sb
+
+
+def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[float], *, step_id: str = "",
+                   limits: dict | None = None, samples: Sequence | None = None) -> list[Crossing]:
+    """Every boundary crossing along ``path`` between the given samples, in path order.
+
+    Parameters
+    ----------
+    fluid : Fluid
+    path : callable
+        t -> State on [0, 1].
+    t_samples : sequence of float
+        Increasing path parameters already sampled (include 0 and 1).
+    limits : dict, optional
+        ``min_metal_T`` [K], ``max_T`` [K], ``max_p`` [Pa]; absent keys are not checked.
+    samples : sequence of State, optional
+        The states at ``t_samples`` if already computed.
+
+    Returns
+    -------
+    list of Crossing
+        Sorted by t. A path that leaves the model's range (e.g. a cubic below the CO2 triple-point
+        pressure) ends with a 'model-range' crossing at the last point the model could compute.
+    """
+    limits = limits or {}
+    ts = list(t_samples)
+    states, good_t = [], []
+    failure = None
+    for i, t in enumerate(ts):
+        try:
+            s = samples[i] if samples is not None else path(t)
+        except (ModelRangeError, ConvergenceError) as exc:
+            failure = (t, exc)
+            break
+        states.append(s)
+        good_t.append(t)
+    out: list[Crossing] = []
+    pure = fluid.is_pure
+    for (ta, sa), (tb, sb) in zip(zip(good_t, states), zip(good_t[1:], states[1:])):
+        if _label(sa) != _label(sb):
+            a0, sa0, b0, sb0 = _bisect_label(path, ta, sa, tb, sb)
+            kind, side = _classify(_label(sa0), _label(sb0), pure)
+            st = sb0 if _label(sb0) == "two-phase" else sa0
+            out.append(Crossing(kind, 0.5 * (a0 + b0), 0.5 * (sa0.T + sb0.T), 0.5 * (sa0.p + sb0.p), _label(sa0),
+                                _label(sb0), side, "", st))
+    # scalar boundaries
+    funcs: list[tuple[str, Callable]] = []
+    if pure and fluid._crit is not None:
+        pc = fluid.critical_point().p
+
+        def g_pc(s):
+            if s.p <= pc:
+                return np.nan
+            return s.T - _pseudo_critical_T(fluid, s.p)
+
+        funcs.append(("pseudo-critical", g_pc))
+    if "CO2" in fluid.components:
+        funcs.append(("solid-CO2", lambda s: s.T - _freeze_T(s.p)))
+    if "min_metal_T" in limits:
+        funcs.append(("min-metal-T", lambda s: s.T - limits["min_metal_T"]))
+    if "max_T" in limits:
+        funcs.append(("max-T", lambda s: limits["max_T"] - s.T))
+    if "max_p" in limits:
+        funcs.append(("max-p", lambda s: limits["max_p"] - s.p))
+    for kind, g in funcs:
+        vals = []
+        for s in states:
+            try:
+                vals.append(g(s))
+            except SupercritError:
+                vals.append(np.nan)
+        for i in range(len(states) - 1):
+            ga, gb = vals[i], vals[i + 1]
+            if not (np.isfinite(ga) and np.isfinite(gb)) or ga == gb or ga * gb > 0:
+                continue
+            if ga == 0.0:
+                continue
+            tstar = brentq(lambda t: g(path(t)), good_t[i], good_t[i + 1], xtol=1e-10, rtol=1e-12)
+            st = path(tstar)
+            entering = gb < 0
+            out.append(Crossing(kind, tstar, st.T, st.p, "inside" if not entering else "outside",
+                                "outside" if entering else "inside", "", "", st))
+    if failure is not None and good_t:
+        t_fail, exc = failure
+        ta, tb = good_t[-1], t_fail
+        for _ in range(60):  # last computable point
+            tm = 0.5 * (ta + tb)
+            try:
+                path(tm)
+                ta = tm
+            except (ModelRangeError, ConvergenceError):
+                tb = tm
+            if tb - ta < 1e-9:
+                break
+        s = path(ta)
+        out.append(Crossing("model-range", ta, s.T, s.p, _label(s), "outside the model", "", str(exc), s))
+    out.sort(key=lambda c: c.t)
+    return out

@@ -1,0 +1,66 @@
+"""Crossings located on hand-made paths where the answer is known from the model itself."""
+import numpy as np
+import pytest
+
+import supercrit as sc
+from supercrit.analysis.crossings import find_crossings, pseudo_critical_temperature
+
+
+def _isobaric_path(fluid, p, T_in, T_out):
+    h1, h2 = fluid.state(T=T_in, p=p).h, fluid.state(T=T_out, p=p).h
+    return lambda t: fluid.state(p=p, h=h1 + t * (h2 - h1))
+
+
+def test_cooler_at_60_bar_crosses_saturation_at_tsat():
+    """A pure-CO2 cooler at 60 bar crosses the saturation line at Tsat(60 bar) of the same model, to 0.01 K."""
+    f = sc.Fluid("CO2", model="pr")
+    path = _isobaric_path(f, 60e5, 333.15, 283.15)
+    cr = find_crossings(f, path, np.linspace(0, 1, 21))
+    kinds = [c.kind for c in cr]
+    assert kinds == ["two-phase-entry", "two-phase-exit"]
+    Tsat = f.saturation(p=60e5).T
+    for c in cr:
+        assert c.T == pytest.approx(Tsat, abs=0.01)
+        assert c.p == pytest.approx(60e5, abs=1000.0)
+        assert c.side == "saturation"
+    assert cr[0].before == "gas" and cr[1].after == "liquid"
+
+
+def test_cooler_at_80_bar_crosses_pseudo_critical_line_at_cp_maximum():
+    """An 80 bar CO2 cooler from 60 to 25 degC crosses the pseudo-critical line where cp peaks; the location
+    is checked against an independent fine scan of cp along the isobar (0.001 K steps)."""
+    f = sc.Fluid("CO2", model="pr")
+    path = _isobaric_path(f, 80e5, 333.15, 298.15)
+    cr = find_crossings(f, path, np.linspace(0, 1, 11))
+    pcs = [c for c in cr if c.kind == "pseudo-critical"]
+    assert len(pcs) == 1
+    T = np.arange(305.0, 320.0, 0.001)
+    T_scan = T[np.argmax(f.state(T=T, p=np.full_like(T, 80e5)).cp)]
+    assert pcs[0].T == pytest.approx(T_scan, abs=0.01)
+    assert pseudo_critical_temperature(f, 80e5) == pytest.approx(T_scan, abs=0.002)
+    assert not [c for c in cr if c.kind.startswith("two-phase")]
+
+
+def test_throttle_of_saturated_liquid_to_5_bar_stops_at_triple_point_pressure():
+    """Saturated liquid CO2 at 60 bar throttled to 5 bar: the isenthalpic path reaches the CO2 triple-point
+    pressure, 5.1795 bar (Span & Wagner 1996, Table 34), where a cubic model (no solid phase) must stop: solid
+    CO2 forms below it."""
+    f = sc.Fluid("CO2", model="pr")
+    h = f.saturation(p=60e5).liquid.h
+    path = lambda t: f.state(p=60e5 + t * (5e5 - 60e5), h=h)  # noqa: E731
+    cr = find_crossings(f, path, np.linspace(0, 1, 23))
+    last = cr[-1]
+    assert last.kind == "model-range"
+    assert last.p == pytest.approx(5.1795e5, abs=1000.0)
+    assert "triple-point" in last.text
+
+
+def test_limits_are_located():
+    f = sc.Fluid("N2", model="pr")
+    path = lambda t: f.state(T=300.0 - 100.0 * t, p=50e5 + 100e5 * t)  # noqa: E731
+    cr = find_crossings(f, path, np.linspace(0, 1, 5),
+                        limits={"min_metal_T": 244.15, "max_p": 120e5, "max_T": 400.0})
+    by = {c.kind: c for c in cr}
+    assert by["min-metal-T"].T == pytest.approx(244.15, abs=1e-6)
+    assert by["max-p"].p == pytest.approx(120e5, rel=1e-9)
+    assert "max-T" not in by
