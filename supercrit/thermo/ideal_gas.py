@@ -11,6 +11,7 @@ state (Planck-Einstein and power terms, see components.yaml). Models never conta
 """
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 
 import numpy as np
@@ -85,6 +86,29 @@ class IdealGasParts:
         pe = np.sum(self.pe_n * (u / np.expm1(u) - np.log(-np.expm1(-u))), axis=-1)
         pw = np.sum(self.pw_n * (self.pw_t - 1) * (self.pw_Tred / T[..., None, None]) ** self.pw_t, axis=-1)
         return self.c0 * np.log(T)[..., None] + pe + pw
+
+    def all_R(self, T):
+        """(cp0/R, (h0 - h0_ref)/R [K], (s0 - s0_ref)/R) per component, sharing one set of exponentials."""
+        T = np.asarray(T, dtype=float)
+        u = self._u(T)
+        em1 = np.expm1(u)
+        Tb = T[..., None, None]
+        tr = (self.pw_Tred / Tb) ** self.pw_t
+        cp = self.c0 + np.sum(self.pe_n * u * u * (em1 + 1.0) / (em1 * em1), axis=-1) \
+            + np.sum(-self.pw_n * self.pw_t * (self.pw_t - 1) * tr, axis=-1)
+        H = self.c0 * T[..., None] + np.sum(self.pe_n * self.pe_theta / em1, axis=-1) \
+            + np.sum(self.pw_n * self.pw_t * tr * Tb, axis=-1)
+        S = self.c0 * np.log(T)[..., None] + np.sum(self.pe_n * (u / em1 - np.log(-np.expm1(-u))), axis=-1) \
+            + np.sum(self.pw_n * (self.pw_t - 1) * tr, axis=-1)
+        return cp, H - self._H_ref, S - self._S_ref
+
+    @functools.cached_property
+    def _H_ref(self):
+        return self._H(T_REF)
+
+    @functools.cached_property
+    def _S_ref(self):
+        return self._S(T_REF)
 
     def h0_R(self, T) -> np.ndarray:
         """(h0(T) - h0(T_REF))/R per component [K], shape (..., nc)."""

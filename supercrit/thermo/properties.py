@@ -74,10 +74,11 @@ def all_properties(model, ideal, M, T, rho, x) -> dict[str, np.ndarray]:
     p = rho * RT * Z
     dpdrho = RT * (1.0 + 2.0 * d.A01 + d.A02)
     dpdT = rho * R * (1.0 + d.A01 - d.A11)
-    cp0_R = np.sum(x * ideal.cp0_R(T), axis=-1)
-    h0_R = np.sum(x * ideal.h0_R(T), axis=-1)
+    cp0_i, h0_i, s0_i = ideal.all_R(T)
+    cp0_R = np.sum(x * cp0_i, axis=-1)
+    h0_R = np.sum(x * h0_i, axis=-1)
     xlnx = np.sum(np.where(x > 0, x * np.log(np.where(x > 0, x, 1.0)), 0.0), axis=-1)
-    s0_R = np.sum(x * ideal.s0_R(T), axis=-1) - np.log(rho * RT / P_REF) - xlnx
+    s0_R = np.sum(x * s0_i, axis=-1) - np.log(rho * RT / P_REF) - xlnx
     h = R * h0_R + RT * (d.A10 + d.A01)
     s = R * s0_R + R * (d.A10 - d.A00)
     cv = R * (cp0_R - 1.0 - d.A20)
