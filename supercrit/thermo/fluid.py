@@ -273,7 +273,7 @@ class Fluid:
             return mixture_state_p_prop(self, p, target, key)
         lo, hi = self._T_limits()
         comp = self._comps[0] if self.is_pure else None
-        if self.model_name == "span-wagner" and np.any(p < comp.pt):
+        if self.model_name == "span-wagner" and np.any(p <= comp.pt):
             from .solvers.solid_flash import state_p_prop_with_solid  # solid CO2 below the triple point
 
             return state_p_prop_with_solid(self, p, target, key)
@@ -343,3 +343,34 @@ class Fluid:
             raise ModelRangeError(f"the {self.model_name} model has no critical point (no two-phase region)")
         c = self._crit
         return CriticalState(T=float(c.T), p=float(c.p), rho_molar=float(c.rho), rho_mass=float(c.rho * self.M))
+
+    # -- mixtures: bubble and dew points, phase envelope --------------------------------------
+    def bubble_point(self, T=None, p=None):
+        """Bubble point of the feed at T [K] or p [Pa]: object with T, p, liquid, vapor (States).
+
+        Pure fluids return the saturation state. Raises ModelRangeError if the bubble branch does not
+        reach the given T or p.
+        """
+        return self._sat_point("bubble", T, p)
+
+    def dew_point(self, T=None, p=None):
+        """Dew point of the feed at T [K] or p [Pa] (lower dew pressure in the retrograde region)."""
+        return self._sat_point("dew", T, p)
+
+    def _sat_point(self, kind, T, p):
+        if self.is_pure:
+            return self.saturation(T=T, p=p)
+        if not getattr(self.model, "phase_kernel", None):
+            raise ModelRangeError(f"{kind} points of mixtures need a cubic model; {self.model_name} has none")
+        from .mixture import saturation_point
+
+        return saturation_point(self, kind, T=T, p=p)
+
+    def envelope(self):
+        """Phase envelope: arrays T [K], p [Pa], branch ('bubble'/'dew') along the curve, critical,
+        cricondenbar, cricondentherm (each with T, p), closed and reason. Pure fluids: saturation curve."""
+        if not self.is_pure and not getattr(self.model, "phase_kernel", None):
+            raise ModelRangeError(f"the {self.model_name} model has no mixture phase envelope; choose a cubic model")
+        from .mixture import envelope_curve
+
+        return envelope_curve(self)

@@ -240,6 +240,10 @@ class CubicModel:
         rho = np.where(ok, 1.0 / np.where(ok, v, 1.0), np.nan)
         return np.sort(rho, axis=-1)
 
+    def phase_kernel(self, T) -> "CubicPhaseKernel":
+        """A :class:`CubicPhaseKernel` at temperature T [K] (mixture flash, stability and envelope work)."""
+        return CubicPhaseKernel(self, T)
+
     def critical_point(self) -> CriticalPoint:
         if self.crit is None:
             raise ModelRangeError(f"{self.name}: the critical point of a mixture is found by the mixture "
@@ -428,11 +432,3 @@ class CubicPhaseKernel:
     def density(self, x, V):
         """Translated molar density [mol m-3] from an untranslated molar volume V [m3 mol-1]."""
         return 1.0 / (V - float(self.c @ x))
-
-
-def _phase_kernel(self, T) -> CubicPhaseKernel:
-    """A :class:`CubicPhaseKernel` at temperature T [K] (mixture flash, stability and envelope work)."""
-    return CubicPhaseKernel(self, T)
-
-
-CubicModel.phase_kernel = _phase_kernel

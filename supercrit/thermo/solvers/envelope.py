@@ -1,0 +1,307 @@
+"""Phase envelope of a mixture by Michelsen continuation, through the critical point.
+
+Unknowns X = (ln K_1..ln K_nc, ln T, ln p); equations ln K_i + ln phi_i(y) - ln phi_i(x) = 0,
+sum(y - x) = 0, plus one specification X_s = S. The trace starts on the dew branch (feed = vapour,
+incipient liquid x = z/K) at the lower temperature bound, follows the curve with a linear
+predictor from the sensitivities dX/dS, re-chooses the specified variable as the one changing
+fastest, adapts the step to the Newton iteration count, and passes the critical point where all
+ln K change sign (the feed phase then is the liquid: bubble branch). The critical point is located
+by Hermite interpolation of (T, ln p) in the specified ln K at its sign change; cricondenbar and
+cricondentherm are refined by a bounded 1-D search on the curve.
+
+References: M. L. Michelsen, Fluid Phase Equilib. 4 (1980) 1-10, doi:10.1016/0378-3812(80)80001-X;
+Michelsen & Mollerup, Thermodynamic Models (2nd ed., 2007), ch. 12.
+
+Notes
+-----
+Every point satisfies the equations to max|F| < 1e-10. The trace stops at ``T_min`` (for CO2-bearing
+mixtures the CO2 triple point 216.592 K, Span & Wagner 1996: solid CO2 forms below), or when
+p exceeds ``p_max``, or when the continuation fails after repeated step halving: an envelope that does
+not reach its critical point and come back down to ``T_min`` is reported as open, with the reason.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+from scipy.optimize import minimize_scalar
+
+from ...errors import ConvergenceError
+from .flash import sat_residual, solve_sat_point
+from .result import SolverReport
+from .stability import wilson_K
+
+
+@dataclass(frozen=True)
+class EnvelopePoint:
+    T: float  # [K]
+    p: float  # [Pa]
+
+
+@dataclass(frozen=True)
+class Envelope:
+    """A traced phase envelope: arrays ordered along the curve (dew branch first), SI units.
+
+    T [K], p [Pa], branch ('dew' or 'bubble'), lnK (n, nc), rho_feed, rho_incipient [mol m-3];
+    critical, cricondenbar, cricondentherm (EnvelopePoint or None); closed (bool) and reason (str).
+    """
+
+    T: np.ndarray
+    p: np.ndarray
+    branch: np.ndarray
+    lnK: np.ndarray
+    rho_feed: np.ndarray
+    rho_incipient: np.ndarray
+    critical: EnvelopePoint | None
+    cricondenbar: EnvelopePoint | None
+    cricondentherm: EnvelopePoint | None
+    closed: bool
+    reason: str
+    report: SolverReport
+    critical_index: int | None = None  # points[:critical_index] are dew, the rest bubble
+    extra: dict = field(default_factory=dict)
+
+
+def wilson_dew_pressure(T, z, Tc, pc, omega):
+    """Dew pressure [Pa] from Wilson K-values: 1/p = sum z_i / psat_i."""
+    ps = wilson_K(T, 1.0, Tc, pc, omega)
+    return 1.0 / float(np.sum(z / ps))
+
+
+def wilson_bubble_pressure(T, z, Tc, pc, omega):
+    """Bubble pressure [Pa] from Wilson K-values: p = sum z_i psat_i."""
+    return float(np.sum(z * wilson_K(T, 1.0, Tc, pc, omega)))
+
+
+def _labels(crossed):
+    return ("liq", "vap") if crossed else ("vap", "liq")  # (feed root, incipient root)
+
+
+def _sens(J, s):
+    n = J.shape[1]
+    A = np.vstack([J, np.eye(n)[s]])
+    rhs = np.zeros(n)
+    rhs[-1] = 1.0
+    return np.linalg.solve(A, rhs)
+
+
+def trace_envelope(model, z, Tc, pc, omega, T_min, p_max=1.0e8, max_points=600, T_start=None):
+    """Trace the vapour-liquid envelope of feed z from the dew point at T_start (default T_min).
+
+    Parameters
+    ----------
+    model : CubicModel
+    z : ndarray (nc,)
+        Feed mole fractions [-], at least two components present.
+    Tc, pc, omega : ndarray (nc,)
+        For the Wilson start [K], [Pa], [-].
+    T_min : float
+        Lowest temperature traced [K] (freezing line).
+    p_max : float
+        Pressure at which a still-rising branch is declared open [Pa].
+
+    Returns
+    -------
+    Envelope
+
+    Raises
+    ------
+    ConvergenceError
+        No dew point could be found at the starting temperature.
+    """
+    z = np.asarray(z, dtype=float)
+    nc = len(z)
+    iT, iP = nc, nc + 1
+    T0 = float(T_start if T_start is not None else T_min)
+    X = _start_dew(model, z, T0, Tc, pc, omega)
+    ref = int(np.argmax(np.abs(X[:nc])))
+    sign0 = np.sign(X[ref])
+    pts, branch = [], []
+    crossed = False
+    crit = None
+    crit_index = None
+    s = iP
+    dS = 0.02
+    closed, reason = False, ""
+    total_it = 0
+    fr, wr = _labels(False)
+    F, J, x, y, rx, ry = sat_residual(model, z, X, False, fr, wr)
+    pts.append((X.copy(), ry, rx))
+    branch.append("dew")
+    dX = _sens(J, s)
+    while len(pts) < max_points:
+        # choose the specification: the variable changing fastest along the curve
+        s_new = int(np.argmax(np.abs(dX)))
+        if s_new != s:
+            dX = dX / dX[s_new]
+            dS = dS * abs(dX[s]) if False else dS
+            s = s_new
+        dS = np.sign(dS) * abs(dS)
+        # direction: keep moving forward along the curve
+        if not pts or len(pts) == 1:
+            direction = 1.0 if dX[iP] > 0 else -1.0  # start by raising the pressure
+        else:
+            prev = pts[-2][0]
+            direction = 1.0 if float(dX @ (X - prev)) > 0 else -1.0
+        step = abs(dS)
+        # cap the change of every variable (|d ln K|, |d ln T|, |d ln p|)
+        cap = 0.08 / max(float(np.max(np.abs(dX))), 1e-12)
+        step = min(step, cap)
+        # jump the critical point: mirror ln K_s when the step would land near zero
+        if s < nc and not crossed:
+            Xs_pred = X[s] + direction * step * dX[s]
+            if np.sign(Xs_pred) != np.sign(X[s]) or abs(Xs_pred) < 0.3 * abs(X[s]):
+                step = abs(2.0 * X[s] / dX[s])
+        ok = False
+        for _ in range(12):
+            Xp = X + direction * step * dX
+            will_cross = np.sign(Xp[ref]) != sign0
+            fr, wr = _labels(will_cross)
+            try:
+                Xn, xx, yy, rxx, ryy, it = solve_sat_point(model, z, Xp, s, Xp[s], False, fr, wr, tol=1e-11,
+                                                           max_iter=12, max_step=1.0)
+            except ConvergenceError:
+                step *= 0.5
+                continue
+            # reject a jump back onto the trivial solution or across the wrong branch
+            if float(np.max(np.abs(Xn[:nc]))) < 1e-6 or (np.sign(Xn[ref]) != np.sign(Xp[ref])):
+                step *= 0.5
+                continue
+            if abs(Xn[iT] - X[iT]) > 0.3 or abs(Xn[iP] - X[iP]) > 0.5:
+                step *= 0.5
+                continue
+            ok = True
+            break
+        if not ok:
+            reason = (f"continuation failed after T = {np.exp(X[iT]):.3f} K, p = {np.exp(X[iP]) / 1e5:.3f} bar "
+                      f"({'bubble' if crossed else 'dew'} branch): the envelope is reported open there")
+            break
+        total_it += it
+        F, J, xx, yy, rxx, ryy = sat_residual(model, z, Xn, False, fr, wr)
+        dXn = _sens(J, s)
+        if np.sign(dXn @ (Xn - X)) < 0:
+            dXn = -dXn
+        if (not crossed) and will_cross:
+            crit = _hermite_critical(X, dX, Xn, dXn, ref, iT, iP)
+            crossed = True
+            crit_index = len(pts)
+        Tn, Pn = np.exp(Xn[iT]), np.exp(Xn[iP])
+        if Tn < T_min:
+            # land exactly on the lower temperature bound and stop
+            try:
+                Xe, xx, yy, rxx, ryy, _ = solve_sat_point(model, z, Xn, iT, np.log(T_min), False, fr, wr,
+                                                          max_iter=20)
+                pts.append((Xe, ryy, rxx))
+                branch.append("bubble" if crossed else "dew")
+            except ConvergenceError:
+                pass
+            if crossed:
+                closed = True
+                reason = (f"complete between the lower temperature bound {T_min:.3f} K on both branches "
+                          f"and through the critical point")
+            else:
+                reason = f"returned to {T_min:.3f} K without passing a critical point"
+            break
+        if Pn > p_max:
+            reason = (f"{'bubble' if crossed else 'dew'} branch rises past {p_max / 1e6:.0f} MPa at "
+                      f"T = {Tn:.2f} K without closing: open envelope (no vapour-liquid critical point "
+                      f"on this branch; typical of CO2 with H2, He or water)")
+            break
+        pts.append((Xn.copy(), ryy, rxx))
+        branch.append("bubble" if crossed else "dew")
+        # step control: aim at 3-4 Newton iterations
+        dS = step * (1.5 if it <= 3 else (0.7 if it >= 6 else 1.0))
+        X, dX = Xn, dXn
+    else:
+        reason = f"stopped after {max_points} points without reaching the lower temperature bound"
+    Xs = np.array([q[0] for q in pts])
+    T, P = np.exp(Xs[:, iT]), np.exp(Xs[:, iP])
+    cb = _refine_extremum(model, z, pts, branch, iP, iT, crit_index)
+    ct = _refine_extremum(model, z, pts, branch, iT, iP, crit_index)
+    rep = SolverReport(closed, total_it, 0.0, f"Michelsen continuation, {len(pts)} points")
+    return Envelope(T, P, np.array(branch), Xs[:, :nc], np.array([q[1] for q in pts]),
+                    np.array([q[2] for q in pts]), crit, cb, ct, closed, reason, rep, crit_index)
+
+
+def _start_dew(model, z, T0, Tc, pc, omega):
+    nc = len(z)
+    K = wilson_K(T0, 1.0, Tc, pc, omega)
+    p0 = wilson_dew_pressure(T0, z, Tc, pc, omega)
+    X0 = np.concatenate([np.log(K / p0), [np.log(T0), np.log(p0)]])
+    last = None
+    for damp in (1.0, 0.5, 0.25):
+        try:
+            X, *_ = solve_sat_point(model, z, X0, nc, np.log(T0), False, "vap", "liq", max_iter=60, max_step=damp)
+            if float(np.max(np.abs(X[:nc]))) > 1e-4:
+                return X
+        except ConvergenceError as e:
+            last = e
+    # fall back: start at low pressure, temperature free
+    p_lo = 1e4
+    X0 = np.concatenate([np.log(wilson_K(T0, p_lo, Tc, pc, omega)), [np.log(T0), np.log(p_lo)]])
+    try:
+        X, *_ = solve_sat_point(model, z, X0, nc + 1, np.log(p_lo), False, "vap", "liq", max_iter=80, max_step=0.5)
+        return X
+    except ConvergenceError as e:
+        raise ConvergenceError(f"no dew point found near T = {T0:.3f} K to start the envelope",
+                               e.report or (last.report if last else None)) from None
+
+
+def _hermite_critical(X0, d0, X1, d1, ref, iT, iP):
+    """Critical point where ln K_ref = 0, by cubic Hermite interpolation of ln T, ln p in ln K_ref."""
+    s0, s1 = X0[ref], X1[ref]
+    h = s1 - s0
+    t = (0.0 - s0) / h
+
+    def herm(v0, v1, m0, m1):
+        h00, h10 = 2 * t**3 - 3 * t**2 + 1, t**3 - 2 * t**2 + t
+        h01, h11 = -2 * t**3 + 3 * t**2, t**3 - t**2
+        return h00 * v0 + h10 * h * m0 + h01 * v1 + h11 * h * m1
+
+    out = []
+    for i in (iT, iP):
+        m0 = d0[i] / d0[ref] if d0[ref] != 0 else 0.0
+        m1 = d1[i] / d1[ref] if d1[ref] != 0 else 0.0
+        out.append(herm(X0[i], X1[i], m0, m1))
+    return EnvelopePoint(float(np.exp(out[0])), float(np.exp(out[1])))
+
+
+def _refine_extremum(model, z, pts, branch, i_max, i_par, crit_index):
+    """Maximum of X[i_max] along the curve, refined by a bounded search in X[i_par] around the best point.
+
+    Each trial point is solved from the linear interpolation of the neighbouring traced points, so the
+    search cannot jump to the other branch.
+    """
+    nc = len(z)
+    Xs = np.array([q[0] for q in pts])
+    k = int(np.argmax(Xs[:, i_max]))
+    if k == 0 or k == len(pts) - 1:
+        return EnvelopePoint(float(np.exp(Xs[k, nc])), float(np.exp(Xs[k, nc + 1])))
+    ref = int(np.argmax(np.abs(Xs[0, :nc])))
+    sign0 = np.sign(Xs[0, ref])
+    seg = Xs[k - 1:k + 2]
+    order = np.argsort(seg[:, i_par])
+    seg = seg[order]
+    lo, hi = seg[0, i_par], seg[-1, i_par]
+    if hi - lo < 1e-14:
+        return EnvelopePoint(float(np.exp(Xs[k, nc])), float(np.exp(Xs[k, nc + 1])))
+    found = {}
+
+    def neg(val):
+        j = 0 if val <= seg[1, i_par] else 1
+        a, b = seg[j], seg[j + 1]
+        t = (val - a[i_par]) / (b[i_par] - a[i_par]) if b[i_par] != a[i_par] else 0.0
+        Xg = a + t * (b - a)
+        fr, wr = _labels(np.sign(Xg[ref]) != sign0)
+        try:
+            Xn, *_ = solve_sat_point(model, z, Xg, i_par, val, False, fr, wr, max_iter=30, max_step=0.5)
+        except ConvergenceError:
+            return -Xs[k, i_max] + 1.0
+        found[float(val)] = Xn
+        return -Xn[i_max]
+
+    res = minimize_scalar(neg, bounds=(lo, hi), method="bounded", options={"xatol": 1e-11})
+    Xb = found.get(float(res.x))
+    if Xb is None or Xb[i_max] < Xs[k, i_max]:
+        Xb = Xs[k]
+    return EnvelopePoint(float(np.exp(Xb[nc])), float(np.exp(Xb[nc + 1])))

@@ -1,0 +1,159 @@
+"""Mixture flashes: identities and guards (material balance, Gibbs energy, round trips, near-critical,
+pure-fluid limit, water drop-out, open envelopes)."""
+import numpy as np
+import pytest
+
+from supercrit import Fluid
+from supercrit.errors import InputError, ModelRangeError
+from supercrit.thermo.solvers.flash import flash_Tp, rachford_rice
+
+MIXES = {
+    "CO2/N2": {"CO2": 0.9, "N2": 0.1},
+    "CO2/CH4": {"CO2": 0.95, "CH4": 0.05},
+    "five": {"CO2": 0.96, "N2": 0.02, "O2": 0.01, "Ar": 0.005, "CH4": 0.005},
+}
+
+
+def consts(f):
+    return (np.array([c.Tc for c in f._comps]), np.array([c.pc for c in f._comps]),
+            np.array([c.omega for c in f._comps]))
+
+
+def gibbs_single(f, T, p):
+    k = f.model.phase_kernel(T)
+    lp, _, _ = k.ln_phi(f.x, p, "stable")
+    return float(f.x @ (np.log(f.x) + lp))
+
+
+def check_grid(f, n):
+    Tc, pc, w = consts(f)
+    for T in np.linspace(200.0, 350.0, n):
+        K0 = None
+        for p in np.linspace(1e5, 150e5, n):
+            r = flash_Tp(f.model, T, p, f.x, Tc, pc, w, K0=K0)
+            if not r.two_phase:
+                assert np.isfinite(r.rho) and r.rho > 0
+                continue
+            K0 = r.K
+            assert np.all(np.isfinite(r.x)) and np.all(np.isfinite(r.y))
+            assert 0.0 < r.beta < 1.0
+            np.testing.assert_allclose((1 - r.beta) * r.x + r.beta * r.y, f.x, atol=1e-10)
+            k = f.model.phase_kernel(T)
+            g2 = (1 - r.beta) * (r.x @ (np.log(r.x) + k.ln_phi(r.x, p)[0])) \
+                + r.beta * (r.y @ (np.log(r.y) + k.ln_phi(r.y, p)[0]))
+            assert g2 < gibbs_single(f, T, p)
+            assert r.rho_l > r.rho_v
+
+
+@pytest.mark.parametrize("name", list(MIXES))
+def test_flash_grid_coarse(name):
+    check_grid(Fluid(MIXES[name]), 12)
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("name", list(MIXES))
+def test_flash_grid_60x60(name):
+    check_grid(Fluid(MIXES[name]), 60)
+
+
+@pytest.mark.parametrize("name", list(MIXES))
+def test_ph_and_ps_flash_reproduce_T(name):
+    f = Fluid(MIXES[name])
+    T = np.array([210.0, 240.0, 260.0, 280.0, 300.0, 330.0])
+    p = np.array([2e5, 20e5, 40e5, 60e5, 80e5, 140e5])
+    s = f.state(T=T, p=p)
+    back_h = f.state(p=p, h=s.h)
+    back_s = f.state(p=p, s=s.s)
+    np.testing.assert_allclose(back_h.T, T, atol=1e-6)
+    np.testing.assert_allclose(back_s.T, T, atol=1e-6)
+
+
+@pytest.mark.parametrize("name", list(MIXES))
+def test_near_critical_flashes_converge_or_are_single_phase(name):
+    f = Fluid(MIXES[name])
+    c = f.critical_point()
+    Tc, pc, w = consts(f)
+    for dT in (-0.5, -0.1, 0.0, 0.1, 0.5):
+        for dp in (-0.5e5, -0.1e5, 0.0, 0.1e5, 0.5e5):
+            r = flash_Tp(f.model, c.T + dT, c.p + dp, f.x, Tc, pc, w)
+            if r.two_phase:
+                np.testing.assert_allclose((1 - r.beta) * r.x + r.beta * r.y, f.x, atol=1e-10)
+                assert np.max(np.abs(np.log(r.K))) > 1e-7 and r.rho_l > r.rho_v
+            else:
+                # single phase must really be stable: no split found from the bubble/dew K either
+                assert np.isfinite(r.rho)
+
+
+def test_pure_fluid_limit_of_bubble_and_dew_point():
+    # a CO2 feed with 1e-10 N2: bubble and dew pressures -> pure saturation pressure of the same model
+    pure = Fluid("CO2")
+    f = Fluid({"CO2": 1 - 1e-10, "N2": 1e-10})
+    for T in (230.0, 260.0, 290.0):
+        ps = pure.saturation(T=T).p
+        assert f.dew_point(T=T).p == pytest.approx(ps, rel=1e-8)
+        assert f.bubble_point(T=T).p == pytest.approx(ps, rel=5e-8)
+
+
+def test_pure_envelope_is_saturation_curve():
+    f = Fluid("CO2")
+    e = f.envelope()
+    sat = f.saturation(T=e.T[:-1])
+    np.testing.assert_allclose(e.p[:-1], sat.p, rtol=1e-12)
+    assert e.critical.T == e.T[-1] and e.closed
+
+
+def test_envelope_stops_at_co2_triple_point_and_is_ordered():
+    e = Fluid(MIXES["five"]).envelope()
+    assert e.closed
+    assert e.T.min() == pytest.approx(216.592, abs=1e-9)  # Span & Wagner 1996, Table 34
+    assert e.branch[0] == "dew" and e.branch[-1] == "bubble"
+    assert e.cricondenbar.p >= e.critical.p and e.cricondentherm.T >= e.critical.T
+    assert len(e.T) >= 60
+
+
+def test_water_drop_out_from_co2_is_found():
+    # issue 3 item 6: Wilson-K trials alone miss a water-rich liquid; the near-pure trial finds it
+    f = Fluid({"CO2": 0.99, "H2O": 0.01})
+    Tc, pc, w = consts(f)
+    r = flash_Tp(f.model, 300.0, 30e5, f.x, Tc, pc, w)
+    assert r.two_phase
+    assert r.x[1] > 0.9  # the liquid is almost pure water
+    np.testing.assert_allclose((1 - r.beta) * r.x + r.beta * r.y, f.x, atol=1e-10)
+
+
+def test_rachford_rice_negative_flash_window():
+    z = np.array([0.5, 0.5])
+    K = np.array([3.0, 0.9])
+    b = rachford_rice(z, K)
+    assert np.sum(z * (K - 1) / (1 + b * (K - 1))) == pytest.approx(0.0, abs=1e-14)
+    assert b > 1.0  # the root lies outside [0, 1]: single-phase vapour-side feed
+    with pytest.raises(ValueError):
+        rachford_rice(z, np.array([1.5, 1.2]))
+
+
+def test_no_bubble_point_above_the_envelope_raises():
+    f = Fluid(MIXES["CO2/N2"])
+    with pytest.raises(ModelRangeError):
+        f.bubble_point(T=320.0)
+    with pytest.raises(InputError):
+        f.bubble_point()
+
+
+def test_kij_source_set_and_overrides():
+    f = Fluid({"CO2": 0.98, "H2": 0.02}, kij={"set": "dechema"})
+    assert f.kij[0, 1] == pytest.approx(-0.1622)  # DECHEMA PR set as packaged in thermo 0.6.1
+    g = Fluid({"CO2": 0.98, "H2": 0.02})
+    assert g.kij[0, 1] == pytest.approx(0.104)  # thermopack 2.2.3 default PR table
+    h = Fluid({"CO2": 0.98, "H2": 0.02}, kij={"CO2": {"H2": 0.05}})
+    assert h.kij[0, 1] == 0.05
+    with pytest.raises(InputError):
+        Fluid({"CO2": 0.98, "H2": 0.02}, kij={"set": "nonesuch"})
+
+
+def test_two_phase_state_from_facade():
+    f = Fluid(MIXES["CO2/N2"])
+    s = f.state(T=250.0, p=30e5)
+    assert str(s.phase) == "two-phase"
+    assert 0 < s.vapor_fraction < 1
+    assert s.liquid.composition["N2"] < f.x[1] < s.vapor.composition["N2"]
+    assert f.state(T=320.0, p=100e5).phase.value == "supercritical"
