@@ -5,6 +5,11 @@ of equal shape). Two-phase elements carry their coexisting phase densities and c
 the molar vapour fraction; their h, s, u, g and density are phase-weighted averages. Properties that
 have no single value inside the two-phase region (cp, cv, w, mu_JT, kappa_T, alpha_p) raise
 :class:`~supercrit.errors.PropertyUndefinedError` there instead of returning NaN.
+
+States with solid (pure CO2 below its triple point, :mod:`supercrit.thermo.solvers.solid_flash`)
+carry the molar solid fraction and the solid's molar h, s and density; their h, s, u, g and
+density are averaged over solid, liquid and vapour (vapour fraction ``q_``, liquid fraction
+1 - solid - vapour).
 """
 from __future__ import annotations
 
@@ -25,13 +30,16 @@ class Phase(enum.Enum):
     LIQUID = "liquid"
     SUPERCRITICAL = "supercritical"
     TWO_PHASE = "two-phase"
+    SOLID_VAPOR = "solid-vapour"
+    SOLID_LIQUID_VAPOR = "solid-liquid-vapour"
 
     def __str__(self) -> str:
         return self.value
 
 
-PHASES = (Phase.GAS, Phase.LIQUID, Phase.SUPERCRITICAL, Phase.TWO_PHASE)
-GAS, LIQUID, SUPERCRITICAL, TWO_PHASE = range(4)
+PHASES = (Phase.GAS, Phase.LIQUID, Phase.SUPERCRITICAL, Phase.TWO_PHASE, Phase.SOLID_VAPOR,
+          Phase.SOLID_LIQUID_VAPOR)
+GAS, LIQUID, SUPERCRITICAL, TWO_PHASE, SOLID_VAPOR, SOLID_LIQUID_VAPOR = range(6)
 
 
 def _out(a):
@@ -48,8 +56,9 @@ class State:
     T [K], p [Pa], rho_molar [mol m-3], rho_mass [kg m-3], Z [-], h, u, g [J mol-1] and h_mass,
     u_mass, g_mass [J kg-1], s, cp, cv [J mol-1 K-1] and s_mass, cp_mass, cv_mass [J kg-1 K-1],
     w [m s-1], mu_jt [K Pa-1], kappa_T [Pa-1], alpha_p [K-1], M [kg mol-1], phase (Phase),
-    vapor_fraction [mol mol-1], composition (dict name -> mole fraction), liquid and vapor (States,
-    two-phase only). Enthalpy and entropy use supercrit's reference state (ideal gas, 298.15 K,
+    vapor_fraction [mol mol-1], solid_fraction [mol mol-1] and solid_fraction_mass [kg kg-1],
+    composition (dict name -> mole fraction), liquid and vapor (States, two-phase only; vapor also for
+    solid-vapour, both for solid-liquid-vapour). Enthalpy and entropy use supercrit's reference state (ideal gas, 298.15 K,
     101325 Pa, h = s = 0 for each pure component).
     """
 
@@ -65,6 +74,10 @@ class State:
     rho_v_: np.ndarray | None = None
     x_l_: np.ndarray | None = None
     x_v_: np.ndarray | None = None
+    solid_fraction_: np.ndarray | None = None  # molar solid fraction (solid-containing elements), else 0
+    h_solid_: np.ndarray | None = None  # [J mol-1] molar enthalpy of the solid (same reference state)
+    s_solid_: np.ndarray | None = None  # [J mol-1 K-1] molar entropy of the solid
+    rho_solid_: np.ndarray | None = None  # [mol m-3] molar density of the solid
 
     # -- structure ---------------------------------------------------------------------
     @property
@@ -80,6 +93,16 @@ class State:
         return np.asarray(self.phase_) == TWO_PHASE
 
     @functools.cached_property
+    def _solid(self) -> np.ndarray:
+        codes = np.asarray(self.phase_)
+        return (codes == SOLID_VAPOR) | (codes == SOLID_LIQUID_VAPOR)
+
+    @functools.cached_property
+    def _mixed(self) -> np.ndarray:
+        """Elements with more than one phase (two-phase or solid-containing)."""
+        return self._two | self._solid
+
+    @functools.cached_property
     def _single(self) -> dict:
         return all_properties(self.model, self.ideal, self.M_i, self.T_, self.rho_, self.x_)
 
@@ -90,7 +113,14 @@ class State:
         return L, V
 
     def _avg(self, key: str):
-        """Molar property of the state: phase-weighted where two-phase."""
+        """Molar property of the state: phase-weighted where two-phase (and solid-weighted where solid)."""
+        if np.any(self._solid):
+            L, V = self._phases
+            f = np.where(self._solid, self.solid_fraction_, 0.0)
+            q = self.q_
+            S = {"h": self.h_solid_, "s": self.s_solid_}[key]
+            mix = (1.0 - f - q) * L[key] + q * V[key] + f * np.where(self._solid, S, 0.0)
+            return np.where(self._mixed, mix, self._single[key]) if np.ndim(self._two) else mix
         if not np.any(self._two):
             return self._single[key]
         L, V = self._phases
@@ -99,6 +129,11 @@ class State:
         return np.where(self._two, mix, self._single[key]) if np.ndim(self._two) else mix
 
     def _single_only(self, key: str):
+        if np.any(self._solid):
+            n = int(np.sum(self._solid))
+            raise PropertyUndefinedError(
+                f"{key} has no single value in a state holding solid CO2 ({n} state(s) with solid); "
+                f"use the vapor state's value")
         if np.any(self._two):
             n = int(np.sum(self._two))
             raise PropertyUndefinedError(
@@ -113,9 +148,9 @@ class State:
 
     @property
     def p(self):
-        if not np.any(self._two):
+        if not np.any(self._mixed):
             return _out(self._single["p"])
-        return _out(np.where(self._two, self._phases[1]["p"], self._single["p"]) if np.ndim(self._two)
+        return _out(np.where(self._mixed, self._phases[1]["p"], self._single["p"]) if np.ndim(self._two)
                     else self._phases[1]["p"])
 
     @property
@@ -173,9 +208,25 @@ class State:
             raise PropertyUndefinedError("vapour fraction is undefined for a supercritical state (one dense "
                                          "phase, neither vapour nor liquid)")
         q = np.where(codes == GAS, 1.0, 0.0)
-        if np.any(self._two):
-            q = np.where(self._two, self.q_, q)
+        if np.any(self._mixed):
+            q = np.where(self._mixed, self.q_, q)
         return _out(q)
+
+    @property
+    def solid_fraction(self):
+        """Molar solid fraction [mol mol-1]: 0 for states without solid."""
+        if self.solid_fraction_ is None:
+            return _out(np.zeros(np.shape(self.T_)))
+        return _out(np.where(self._solid, self.solid_fraction_, 0.0))
+
+    @property
+    def solid_fraction_mass(self):
+        """Solid fraction by mass [kg kg-1]; the solid is pure, so for a pure fluid it equals the molar one."""
+        f = np.asarray(self.solid_fraction, dtype=float)
+        if not np.any(f):
+            return _out(f)
+        M_solid = self.x_ @ self.M_i  # solid formed only from a pure fluid (pure CO2)
+        return _out(f * M_solid / (self.x_ @ self.M_i))
 
     @property
     def composition(self) -> dict:
@@ -183,6 +234,11 @@ class State:
         return {n: _out(self.x_[..., i]) for i, n in enumerate(self.components)}
 
     def _phase_state(self, which: str) -> "State":
+        codes = np.asarray(self.phase_)
+        has = self._two | (codes == SOLID_LIQUID_VAPOR) | ((codes == SOLID_VAPOR) & (which == "vapor"))
+        if np.all(has) and np.any(self._solid):
+            rho, x, code = ((self.rho_l_, self.x_l_, LIQUID) if which == "liquid" else (self.rho_v_, self.x_v_, GAS))
+            return State(self.model, self.ideal, self.M_i, self.T_, rho, x, np.full(np.shape(self.T_), code))
         if not np.all(self._two):
             raise PropertyUndefinedError(f"{which} exists only for two-phase states; this state is "
                                          f"{self.phase if np.ndim(self.phase_) == 0 else 'not all two-phase'}")

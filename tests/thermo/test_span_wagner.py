@@ -379,3 +379,16 @@ def test_builder_refuses_nonanalytic_exponents_it_cannot_handle_safely():
     raw["residual"]["nonanalytic"][0][3] = 0.4   # beta = 0.4 -> 1/beta = 2.5 < 3
     with pytest.raises(DataError, match="1/beta"):
         sw._build(raw)
+
+
+def test_fast_second_order_path_equals_the_general_form(model):
+    # identity: the matrix-product path used by every solver (_derivs2) and the general term-by-term form
+    # (_derivs) agree to round-off, including near (Tc, rhoc) and at zero density
+    rng = np.random.default_rng(5)
+    T = np.concatenate([rng.uniform(150.0, 1100.0, 400), model.Tc + rng.uniform(-1e-3, 1e-3, 100), [300.0]])
+    rho = np.concatenate([rng.uniform(0.0, 36000.0, 400), model.rhoc * (1 + rng.uniform(-1e-4, 1e-4, 100)), [0.0]])
+    x = np.ones((T.size, 1))
+    fast, ref = model._derivs2(T, rho, x), model._derivs(T, rho, x, 2)
+    for key in ref:
+        err = np.abs(fast[key] - ref[key]) / np.maximum(np.abs(ref[key]), 1.0)
+        assert err.max() < 1e-12, key

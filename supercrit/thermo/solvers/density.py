@@ -1,15 +1,32 @@
 """Density roots at given (T, p, x), and the stable one.
 
-Models with a closed-form density (cubics, virial, ideal gas) supply ``density_roots``; for the
-others (multiparameter Helmholtz equations) this module scans p(rho) on a grid that is dense near
-the model's critical density, brackets every sign change of p(rho) - p and refines it by a
-vectorised Illinois (regula falsi) iteration. Only mechanically stable roots (dp/drho > 0) are kept.
+Models with a closed-form density (cubics, virial, ideal gas) supply ``density_roots``. For the
+others (multiparameter Helmholtz equations) two methods are used:
+
+* Pure-fluid models with published ancillary equations (``saturation_guess`` and
+  ``saturation_pressure_guess``, e.g. Span-Wagner CO2) are solved branch by branch, all states
+  at once: below Tc the ancillary vapour pressure decides which branch is wanted (the vapour
+  branch for p < 1.2 psat, the liquid branch for p > 0.8 psat, both in between so that the Gibbs
+  choice and the flash solvers see the metastable root too). The vapour root is found by Newton in
+  (ln rho, ln p) from the ideal-gas density (Z < 1 below Tc puts it left of the root, and ln p is
+  concave in ln rho on the vapour branch, so the iterates rise monotonically to the root); the
+  liquid root by Newton in (rho, p) from the ancillary liquid density (p is convex in rho on the
+  liquid branch: after at most one overshoot the iterates fall monotonically to the root). At and
+  above Tc a Newton-bisection hybrid in ln rho on the bracket (ideal-gas limit, max density) is used.
+  Every root is checked (dp/drho > 0, right side of rho_c); states that fail, and states within
+  0.01 K below Tc where the ancillaries lose their meaning, go to the grid scan below.
+* Otherwise p(rho) is scanned on a grid that is dense near the model's critical density, every
+  sign change of p(rho) - p is bracketed and refined by a vectorised Illinois (regula falsi)
+  iteration.
+
+Only mechanically stable roots (dp/drho > 0) are kept.
 
 Notes
 -----
-Tolerance: |p(rho) - p| <= 1e-12 p (refined roots). Known failure region: two roots closer than
-the grid spacing near the critical point are found only where the grid is dense (|rho/rho_c - 1|
-> 1e-6); the Gibbs choice then still returns the stable root of those found.
+Tolerance: |p(rho)/p - 1| <= 1e-13 or a relative density step <= 1e-14 (branch Newton), |p(rho) -
+p| <= 1e-13 p (grid). Known failure region of the grid scan: two roots closer than the grid spacing
+near the critical point are found only where the grid is dense (|rho/rho_c - 1| > 1e-6); the Gibbs
+choice then still returns the stable root of those found.
 """
 from __future__ import annotations
 
@@ -44,10 +61,10 @@ def density_roots(model, T, p, x, rho_c=None):
         roots = _scan_roots(model, T, p, x, rho_c)
     if roots.shape[-1] > 1:
         ok = np.isfinite(roots)
-        safe = np.where(ok, roots, 1.0)
         Tb = np.broadcast_to(np.asarray(T, dtype=float)[..., None], roots.shape)
         xb = np.broadcast_to(np.asarray(x, dtype=float)[..., None, :], roots.shape + (np.shape(x)[-1],))
-        stable = dp_drho(model, Tb, safe, xb) > 0
+        stable = np.zeros(roots.shape, dtype=bool)
+        stable[ok] = dp_drho(model, Tb[ok], roots[ok], xb[ok]) > 0  # only where a root was found
         roots = np.where(ok & stable, roots, np.nan)
     return roots
 
@@ -67,7 +84,11 @@ def stable_density(model, T, p, x, rho_c=None):
         ok = np.isfinite(roots)
         Tb = np.broadcast_to(np.asarray(T, dtype=float)[..., None], roots.shape)
         xb = np.broadcast_to(np.asarray(x, dtype=float)[..., None, :], roots.shape + (np.shape(x)[-1],))
-        g = np.where(ok, reduced_gibbs_residual(model, Tb, np.where(ok, roots, 1.0), xb), np.inf)
+        g = np.full(roots.shape, np.inf)
+        # the Gibbs energy is needed only where more than one root was found
+        many = ok & (ok.sum(axis=-1, keepdims=True) > 1)
+        g[many] = reduced_gibbs_residual(model, Tb[many], roots[many], xb[many])
+        g[ok & ~many] = 0.0
         # ties (exactly on the saturation line) go to the denser root
         g = g - 1e-15 * np.arange(roots.shape[-1])
         idx = np.argmin(g, axis=-1)
@@ -79,6 +100,151 @@ def stable_density(model, T, p, x, rho_c=None):
 
 
 def _scan_roots(model, T, p, x, rho_c=None, n_grid=160, max_iter=200):
+    """Mechanically stable density roots [mol m-3], ascending, NaN-padded; shape (..., k)."""
+    if hasattr(model, "saturation_guess") and hasattr(model, "saturation_pressure_guess") \
+            and len(getattr(model, "components", ())) == 1:
+        return _branch_roots(model, T, p, x, rho_c, n_grid, max_iter)
+    return _grid_roots(model, T, p, x, rho_c, n_grid, max_iter)
+
+
+def _p_dpdrho(model, T, rho, x):
+    """p [Pa] and (dp/drho)_T [Pa m3 mol-1] from one evaluation of the alpha_r derivatives."""
+    d = model.alphar_derivs(T, rho, x)
+    RT = model.R(x) * T
+    return rho * RT * (1.0 + d.A01), RT * (1.0 + 2.0 * d.A01 + d.A02)
+
+
+def _newton_vapor(model, T, p, x, rho0, rho_c, max_iter=60):
+    """Vapour-branch root by Newton in (ln rho, ln p) from the left; NaN where there is none."""
+    lr = np.log(rho0)
+    rho = rho0.copy()
+    act = np.arange(T.size)
+    ok = np.zeros(T.size, dtype=bool)
+    for _ in range(max_iter):
+        if act.size == 0:
+            break
+        r = np.exp(lr[act])
+        pr, dp = _p_dpdrho(model, T[act], r, x[act])
+        good = (pr > 0) & (dp > 0) & (r < rho_c)
+        F = np.log(np.where(good, pr, 1.0) / p[act])
+        step = -F * pr / np.where(good, r * dp, 1.0)
+        conv = good & ((np.abs(F) <= 1e-13) | (np.abs(step) <= 1e-14))
+        rho[act] = r
+        ok[act[conv]] = True
+        lr[act] = np.minimum(lr[act] + np.where(good, step, 0.0), np.log(rho_c))
+        act = act[good & ~conv]
+    rho = np.where(ok, rho, np.nan)
+    return rho
+
+
+def _newton_liquid(model, T, p, x, rho0, rho_c, rmax, max_iter=60):
+    """Liquid-branch root by Newton in (rho, p) from the ancillary liquid density; NaN where none."""
+    rho = rho0.copy()
+    act = np.arange(T.size)
+    ok = np.zeros(T.size, dtype=bool)
+    for _ in range(max_iter):
+        if act.size == 0:
+            break
+        r = rho[act]
+        pr, dp = _p_dpdrho(model, T[act], r, x[act])
+        good = (dp > 0) & (r > rho_c)
+        F = pr - p[act]
+        step = -F / np.where(good, dp, 1.0)
+        conv = good & ((np.abs(F) <= 1e-13 * p[act]) | (np.abs(step) <= 1e-14 * r))
+        ok[act[conv]] = True
+        new = np.clip(r + np.where(good, step, 0.0), rho_c, rmax[act])
+        # at the density bound with p still too high: the state is beyond the model's range
+        good &= ~((new == rmax[act]) & (r == rmax[act]))
+        rho[act] = np.where(conv, r, new)
+        act = act[good & ~conv]
+    return np.where(ok, rho, np.nan)
+
+
+def _hybrid_single(model, T, p, x, rmax, max_iter=200):
+    """The one root at and above Tc: Newton-bisection in ln rho on (ideal-gas limit, rmax); NaN if none."""
+    R = model.R(x)
+    crit = model.critical_point()
+    lo = np.log(1e-3 * p / (R * T))
+    hi = np.log(rmax)
+    p_hi, _ = _p_dpdrho(model, T, rmax, x)
+    has = p_hi > p
+    # split at the critical density: concave part below (start from the ideal gas), convex above
+    # (start from the dense end, where Newton on a convex function descends monotonically)
+    p_c, _ = _p_dpdrho(model, T, np.full(T.shape, crit.rho), x)
+    dense = p > p_c
+    lo = np.where(dense, np.log(crit.rho), lo)
+    hi = np.where(dense, hi, np.log(crit.rho))
+    gas_start = np.clip(np.log(p / (R * T)), lo, np.log(crit.rho))
+    lx = np.where(dense, np.log(crit.rho) + (hi - np.log(crit.rho)) * np.clip(
+        np.log(p / p_c) / np.log(np.maximum(p_hi, p_c * (1 + 1e-12)) / p_c), 0.0, 1.0), gas_start)
+    out = np.full(T.size, np.nan)
+    act = np.nonzero(has)[0]
+    for _ in range(max_iter):
+        if act.size == 0:
+            break
+        r = np.exp(lx[act])
+        pr, dp = _p_dpdrho(model, T[act], r, x[act])
+        F = np.log(np.maximum(pr, 1e-300) / p[act])
+        lo[act] = np.where(F < 0, lx[act], lo[act])
+        hi[act] = np.where(F > 0, lx[act], hi[act])
+        step = np.where(dp > 0, -F * pr / np.where(dp > 0, r * dp, 1.0), np.nan)
+        conv = (np.abs(F) <= 1e-13) | (np.abs(step) <= 1e-14) | (hi[act] - lo[act] <= 1e-14)
+        out[act[conv]] = r[conv]
+        new = lx[act] + step
+        inside = (new > lo[act]) & (new < hi[act]) & np.isfinite(new)
+        lx[act] = np.where(inside, new, 0.5 * (lo[act] + hi[act]))
+        act = act[~conv]
+    return out
+
+
+def _branch_roots(model, T, p, x, rho_c, n_grid, max_iter):
+    """Vapour and liquid roots by branch Newton (module notes), shape (..., 2); grid scan where needed."""
+    T, p = np.broadcast_arrays(np.asarray(T, dtype=float), np.asarray(p, dtype=float))
+    shape = T.shape
+    nc = np.shape(x)[-1]
+    xf = np.broadcast_to(np.asarray(x, dtype=float), shape + (nc,)).reshape(-1, nc)
+    Tf, pf = T.ravel(), p.ravel()
+    crit = model.critical_point()
+    rc = crit.rho if rho_c is None else rho_c
+    R = model.R(xf)
+    # bracket end a little beyond the densest valid state (max_density is itself a valid state, on the
+    # melting line at the highest pressure), so that states on the edge of the range are found
+    rmax = 1.02 * model.max_density(xf)
+    out = np.full((Tf.size, 2), np.nan)
+    fallback = np.zeros(Tf.size, dtype=bool)
+    sub = Tf < crit.T - 0.01
+    near = ~sub & (Tf < crit.T)
+    fallback |= near
+    if np.any(sub):
+        i = np.nonzero(sub)[0]
+        ps = np.full(Tf.size, np.nan)
+        ps[i] = model.saturation_pressure_guess(Tf[i])
+        rl_a = np.full(Tf.size, np.nan)
+        rl_a[i] = model.saturation_guess(Tf[i])[0]
+        iv = i[pf[i] < 1.2 * ps[i]]
+        if iv.size:
+            out[iv, 0] = _newton_vapor(model, Tf[iv], pf[iv], xf[iv], pf[iv] / (R[iv] * Tf[iv]), rc)
+            fallback[iv[np.isnan(out[iv, 0]) & (pf[iv] < 0.98 * ps[iv])]] = True  # a stable vapour root must exist
+        il = i[pf[i] > 0.8 * ps[i]]
+        if il.size:
+            out[il, 1] = _newton_liquid(model, Tf[il], pf[il], xf[il], rl_a[il], rc, rmax[il])
+            fallback[il[np.isnan(out[il, 1]) & (pf[il] > 1.02 * ps[il])]] = True
+    sup = Tf >= crit.T
+    if np.any(sup):
+        i = np.nonzero(sup)[0]
+        out[i, 1] = _hybrid_single(model, Tf[i], pf[i], xf[i], rmax[i])
+    if np.any(fallback):
+        i = np.nonzero(fallback)[0]
+        g = _grid_roots(model, Tf[i], pf[i], xf[i], rc, n_grid, max_iter)
+        lightest = np.min(np.where(np.isfinite(g), g, np.inf), axis=-1)
+        densest = np.max(np.where(np.isfinite(g), g, -np.inf), axis=-1)
+        out[i, 0] = np.where(np.isfinite(lightest), lightest, np.nan)
+        out[i, 1] = np.where(np.isfinite(densest) & (densest > lightest * (1.0 + 1e-12)), densest, np.nan)
+    out = np.sort(out, axis=-1)
+    return out.reshape(shape + (2,))
+
+
+def _grid_roots(model, T, p, x, rho_c=None, n_grid=160, max_iter=200):
     T, p = np.broadcast_arrays(np.asarray(T, dtype=float), np.asarray(p, dtype=float))
     shape = T.shape
     x = np.broadcast_to(np.asarray(x, dtype=float), shape + (np.shape(x)[-1],))

@@ -205,14 +205,14 @@ class SpanWagnerCO2:
         x : array_like
             Mole fractions [mol mol-1], shape (..., 1).
         """
-        return self._derivs(T, rho, x, 0)[(0, 0)]
+        return self._derivs2(T, rho, x)[(0, 0)]
 
     def alphar_derivs(self, T, rho, x) -> AlpharDerivs:
         """alpha_r and ``A_ij = tau^i delta^j d^(i+j) alpha_r/d tau^i d delta^j`` for i + j <= 2 [-].
 
         Parameters as :meth:`alphar`. At exactly (Tc, rhoc) A20 is -inf (see module Notes).
         """
-        a = self._derivs(T, rho, x, 2)
+        a = self._derivs2(T, rho, x)
         return AlpharDerivs(A00=a[(0, 0)], A10=a[(1, 0)], A01=a[(0, 1)],
                             A20=a[(2, 0)], A11=a[(1, 1)], A02=a[(0, 2)])
 
@@ -226,7 +226,7 @@ class SpanWagnerCO2:
 
     def ndalphar_dni(self, T, rho, x) -> np.ndarray:
         """d(n alpha_r)/dn at constant T, V [-], shape (..., 1); for a pure fluid A00 + A01."""
-        a = self._derivs(T, rho, x, 1)
+        a = self._derivs2(T, rho, x)
         return (a[(0, 0)] + a[(0, 1)])[..., None]
 
     def max_density(self, x) -> np.ndarray:
@@ -288,6 +288,117 @@ class SpanWagnerCO2:
                 f"from the triple point 216.592 K up to the critical temperature {self.Tc} K. Above Tc there is "
                 f"no saturation state; treat the state as supercritical.")
         return 1.0 - T / self.Tc
+
+    @functools.cached_property
+    def _fast_tables(self):
+        """Term tables of the fast second-order path (built once per model)."""
+        p = self._sep
+        plain = p.alpha == 0.0                                    # polynomial and exponential terms
+        d, t, c, s, n = p.d[plain], p.t[plain], p.c[plain], p.s[plain], p.n[plain]
+        ex = s > 0
+        ce, de, te = c[ex], d[ex], t[ex]
+        # columns: A00, A10, A20, A01, A11, A02 from sum(term * w) + sum(term u * w_u) + sum(term u^2 * w_uu)
+        W = np.stack([np.ones_like(d), t, t * t - t, d, t * d, d * d - d], axis=1)
+        Wu = np.stack([np.zeros_like(ce), np.zeros_like(ce), np.zeros_like(ce), -ce, -te * ce,
+                       ce - 2.0 * de * ce - ce * ce], axis=1)
+        Wuu = np.stack([np.zeros_like(ce)] * 5 + [ce * ce], axis=1)
+        g = ~plain
+        gauss = _Separable(n=p.n[g], d=p.d[g], t=p.t[g], c=p.c[g], s=p.s[g], alpha=p.alpha[g], eps=p.eps[g],
+                           beta=p.beta[g], gamma=p.gamma[g])
+        return dict(lnn_sign=np.sign(n), lnn=np.log(np.abs(n)), d=d, t=t, ex=np.nonzero(ex)[0],
+                    cidx=ce.astype(int) - 1, cmax=int(ce.max()), W=W, Wu=Wu, Wuu=Wuu, gauss=gauss)
+
+    def _derivs2(self, T, rho, x):
+        """All ``A_ij`` with i + j <= 2, dict keyed (i, j): the fast path used by every solver.
+
+        Polynomial and exponential terms are summed as matrix products of one exp() per term
+        (term = n exp(d ln delta + t ln tau - delta^c)); Gaussian and non-analytic terms have
+        their own closed forms. Agrees with the general ``_derivs`` to round-off (tested); at
+        exactly (Tc, rhoc) it defers to ``_derivs`` for the limits described in the module Notes.
+        """
+        T = np.asarray(T, dtype=float)
+        rho = np.asarray(rho, dtype=float)
+        x = np.asarray(x, dtype=float)
+        shape = np.broadcast_shapes(T.shape, rho.shape, x.shape[:-1])
+        tau = np.broadcast_to(self.Tc / T, shape)
+        delta = np.broadcast_to(rho / self.rhoc, shape)
+        if np.any((tau == 1.0) & (delta == 1.0)):
+            return self._derivs(T, rho, x, 2)
+        k = self._fast_tables
+        with np.errstate(divide="ignore"):
+            lnd, lnt = np.log(delta), np.log(tau)
+        E = np.multiply.outer(lnd, k["d"]) + np.multiply.outer(lnt, k["t"]) + k["lnn"]
+        pw = np.empty(shape + (k["cmax"],))
+        pw[..., 0] = delta
+        for j in range(1, k["cmax"]):
+            pw[..., j] = pw[..., j - 1] * delta
+        u = pw[..., k["cidx"]]
+        E[..., k["ex"]] -= u
+        term = np.exp(E) * k["lnn_sign"]
+        tu = term[..., k["ex"]] * u
+        S = term @ k["W"] + tu @ k["Wu"] + (tu * u) @ k["Wuu"]
+        res = {key: S[..., i] for i, key in enumerate(((0, 0), (1, 0), (2, 0), (0, 1), (1, 1), (0, 2)))}
+        for part in (self._gaussian2(tau, delta, k["gauss"]), self._nonanalytic2(tau, delta)):
+            for key in res:
+                res[key] = res[key] + part[key]
+        return res
+
+    @staticmethod
+    def _gaussian2(tau, delta, g):
+        """Gaussian bell-shaped terms and their scaled derivatives up to second order."""
+        tau, delta = tau[..., None], delta[..., None]
+        dd, dt = delta - g.eps, tau - g.gamma
+        term = g.n * delta ** g.d * tau ** g.t * np.exp(-g.alpha * dd * dd - g.beta * dt * dt)
+        gd = g.d - 2.0 * g.alpha * delta * dd
+        Y2 = gd * gd - 2.0 * g.alpha * delta * (2.0 * delta - g.eps) - gd
+        gt = g.t - 2.0 * g.beta * tau * dt
+        X2 = gt * gt - 2.0 * g.beta * tau * (2.0 * tau - g.gamma) - gt
+        tg, tgt = term * gd, term * gt
+        return {(0, 0): term.sum(-1), (1, 0): tgt.sum(-1), (2, 0): (term * X2).sum(-1),
+                (0, 1): tg.sum(-1), (1, 1): (tgt * gd).sum(-1), (0, 2): (term * Y2).sum(-1)}
+
+    def _nonanalytic2(self, tau, delta):
+        """Non-analytic terms n Delta^b delta psi up to second order; Delta > 0 assumed (not at (Tc, rhoc))."""
+        q = self._na
+        tau, delta = tau[..., None], delta[..., None]
+        e = delta - 1.0
+        ae, se = np.abs(e), np.sign(e)
+        t1 = tau - 1.0
+        k1, k2 = 1.0 / q.beta, 2.0 * q.a
+        p1 = ae ** (k1 - 2.0)                            # exponents > 1 (loader check): finite at e = 0
+        p2 = ae ** (k2 - 2.0)
+        th = -t1 + q.A * p1 * ae * ae
+        th_d = q.A * k1 * se * p1 * ae
+        th_dd = q.A * k1 * (k1 - 1.0) * p1
+        Dl = th * th + q.B * p2 * ae * ae
+        D_d = 2.0 * th * th_d + q.B * k2 * se * p2 * ae
+        D_dd = 2.0 * th_d * th_d + 2.0 * th * th_dd + q.B * k2 * (k2 - 1.0) * p2
+        D_t = -2.0 * th
+        D_td = -2.0 * th_d
+        b = q.b
+        P2 = b * (b - 1.0) * Dl ** (b - 2.0)
+        P1 = P2 * Dl / (b - 1.0)
+        F = P1 * Dl / b
+        F_t, F_d = P1 * D_t, P1 * D_d
+        F_tt = P2 * D_t * D_t + 2.0 * P1
+        F_td = P2 * D_t * D_d + P1 * D_td
+        F_dd = P2 * D_d * D_d + P1 * D_dd
+        psi = np.exp(-q.C * e * e - q.D * t1 * t1)
+        ps_d = -2.0 * q.C * e * psi
+        ps_dd = (4.0 * q.C * q.C * e * e - 2.0 * q.C) * psi
+        ps_t = -2.0 * q.D * t1 * psi
+        ps_tt = (4.0 * q.D * q.D * t1 * t1 - 2.0 * q.D) * psi
+        ps_td = 4.0 * q.C * q.D * e * t1 * psi
+        H = psi + delta * ps_d                            # d(delta psi)/d delta
+        n = q.n
+        return {(0, 0): (n * F * delta * psi).sum(-1),
+                (1, 0): (n * tau * delta * (F_t * psi + F * ps_t)).sum(-1),
+                (2, 0): (n * tau * tau * delta * (F_tt * psi + 2.0 * F_t * ps_t + F * ps_tt)).sum(-1),
+                (0, 1): (n * delta * (F * H + delta * F_d * psi)).sum(-1),
+                (1, 1): (n * tau * delta * (F_t * H + delta * (F_td * psi + F_d * ps_t)
+                                            + F * (ps_t + delta * ps_td))).sum(-1),
+                (0, 2): (n * delta * delta * (F_dd * delta * psi + 2.0 * F_d * H
+                                              + F * (2.0 * ps_d + delta * ps_dd))).sum(-1)}
 
     def _derivs(self, T, rho, x, order):
         """All ``A_ij`` with i + j <= order, dict keyed (i, j); arrays of the broadcast shape."""
