@@ -14,7 +14,7 @@ from .build import build_model, canonical_model_name
 from .components import Component, get_component
 from .ideal_gas import IdealGasParts
 from .solvers.density import check_Tp, stable_density
-from .solvers.flash_pure import flash_p_prop
+from .solvers.flash_pure import flash_p_prop_batch
 from .solvers.result import SolverReport
 from .solvers.saturation import saturation_pressure, saturation_temperature
 from .state import GAS, LIQUID, SUPERCRITICAL, TWO_PHASE, State
@@ -277,28 +277,24 @@ class Fluid:
             from .solvers.solid_flash import state_p_prop_with_solid  # solid CO2 below the triple point
 
             return state_p_prop_with_solid(self, p, target, key)
-        results = []
-        for pi, ti in zip(p.ravel(), target.ravel()):
-            r = flash_p_prop(self.model, self.ideal, self.M_i, self.x, float(pi), float(ti), key, self._crit,
-                             lo, hi)
-            if comp is not None and r["phase"] == "two-phase" and pi < comp.pt and self.model_name != "span-wagner":
-                raise ModelRangeError(
-                    f"{comp.name} at p = {pi / 1e5:.4f} bar is below its triple-point pressure "
-                    f"{comp.pt / 1e5:.4f} bar: no liquid can exist there and the state would hold solid. "
-                    f"The {self.model_name} model has no solid phase; use model 'span-wagner' for pure CO2.")
-            results.append(r)
         shape = p.shape
-        T = np.array([r["T"] for r in results]).reshape(shape)
-        rho = np.array([r["rho"] for r in results]).reshape(shape)
-        two = np.array([r["phase"] == "two-phase" for r in results]).reshape(shape)
+        r = flash_p_prop_batch(self.model, self.ideal, self.M_i, self.x, p.ravel(), target.ravel(), key, self._crit,
+                               lo, hi)
+        two = r["two"]
+        if comp is not None and np.any(two & (p.ravel() < comp.pt)) and self.model_name != "span-wagner":
+            pi = float(p.ravel()[np.argmax(two & (p.ravel() < comp.pt))])
+            raise ModelRangeError(
+                f"{comp.name} at p = {pi / 1e5:.4f} bar is below its triple-point pressure "
+                f"{comp.pt / 1e5:.4f} bar: no liquid can exist there and the state would hold solid. "
+                f"The {self.model_name} model has no solid phase; use model 'span-wagner' for pure CO2.")
+        T, rho = r["T"].reshape(shape), r["rho"].reshape(shape)
         x = self._xb(shape)
         codes = self._label(T, p, rho)
         if not np.any(two):
             return State(self.model, self.ideal, self.M_i, T, rho, x, codes)
-        q = np.array([r["q"] if r["q"] is not None else 0.0 for r in results]).reshape(shape)
-        rl = np.array([r["rho_l"] if r["rho_l"] is not None else r["rho"] for r in results]).reshape(shape)
-        rv = np.array([r["rho_v"] if r["rho_v"] is not None else r["rho"] for r in results]).reshape(shape)
-        return State(self.model, self.ideal, self.M_i, T, rho, x, np.where(two, TWO_PHASE, codes), q, rl, rv, x, x)
+        two = two.reshape(shape)
+        return State(self.model, self.ideal, self.M_i, T, rho, x, np.where(two, TWO_PHASE, codes),
+                     r["q"].reshape(shape), r["rho_l"].reshape(shape), r["rho_v"].reshape(shape), x, x)
 
     def saturation(self, T=None, p=None) -> SaturationState:
         """Saturated liquid and vapour of a pure fluid at T [K] or p [Pa] (arrays allowed).

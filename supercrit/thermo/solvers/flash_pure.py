@@ -1,104 +1,216 @@
-"""Pure-fluid (p, h) and (p, s) specifications, including inside the two-phase dome.
+"""Pure-fluid (p, h) and (p, s) specifications, including inside the two-phase dome; vectorised.
 
-Method: below the model's critical pressure the saturation temperature and the saturated liquid
-and vapour values of h (or s) at p are computed first; a value between them is two-phase with the
-vapour fraction from the lever rule. Otherwise T is found on the liquid branch (T below Tsat,
-densest root), the vapour branch (T above Tsat, lightest root) or, at or above the critical
-pressure and for models without a two-phase region, on the single stable branch, by a bracketed
-Brent solve of h(T, p) - h = 0 (h is monotone in T at constant p on each branch, cp > 0).
+Method: below the model's critical pressure the saturation temperature and the saturated liquid and
+vapour values of h (or s) at p come first; a value between them is two-phase with the vapour
+fraction from the lever rule. Every other element is single-phase on one branch: liquid (T below
+Tsat, densest root), vapour (T above Tsat, lightest root), or the stable root at or above the
+critical pressure and for models without a two-phase region. On its branch h(T) at constant p rises
+monotonically (cp > 0), so T is found by a safeguarded Newton iteration with the exact slope
+(dh/dT)_p = cp, (ds/dT)_p = cp/T, inside a bracket that a 12-point scan of the branch narrows first.
+All elements of a batch iterate together (numpy), so a path of states costs about one solve.
 
 Notes
 -----
-Tolerance: |dT| <= 1e-10 K. Known failure region: none in the cubic models' range; a target
-outside [T_min, T_max] (the ideal-gas correlation's range, or the triple point on the liquid
-side) raises ModelRangeError.
+Tolerance: |dT| <= 1e-9 K or |h - h*| <= 1e-10 |h*| + 1e-8 J/mol. A target outside the branch's
+[T_min, T_max] raises ModelRangeError naming the bound; a non-converged element raises
+ConvergenceError with the report.
 """
 from __future__ import annotations
 
 import numpy as np
-from scipy.optimize import brentq
 
 from ...errors import ConvergenceError, ModelRangeError
 from ..properties import all_properties
-from .density import density_roots
+from .density import density_roots, stable_density
 from .result import SolverReport
 from .saturation import saturation_temperature
 
+STABLE, LIQUID_BRANCH, VAPOR_BRANCH = 0, 1, 2
 
-def _prop_at(model, ideal, M, x, T, p, branch, key, rho_c):
+
+def _branch_density(model, T, p, x, branch, rho_c):
+    """Density on the requested branch [mol m-3]; NaN where that branch has no root."""
     roots = density_roots(model, T, p, x, rho_c)
-    r = roots[np.isfinite(roots)]
-    if r.size == 0:
-        raise ModelRangeError(f"{model.name}: no density root at T = {T:.3f} K, p = {p / 1e5:.4f} bar")
-    if branch == "liquid":
-        rho = r.max()
-    elif branch == "vapor":
-        rho = r.min()
-    else:
-        from .density import stable_density
-
-        rho = float(stable_density(model, T, p, x, rho_c))
-    return all_properties(model, ideal, M, T, rho, x)[key], rho
+    ok = np.isfinite(roots)
+    has = ok.any(axis=-1)
+    hi = np.where(has, np.nanmax(np.where(ok, roots, -np.inf), axis=-1), np.nan)
+    lo = np.where(has, np.nanmin(np.where(ok, roots, np.inf), axis=-1), np.nan)
+    rho = np.where(branch == LIQUID_BRANCH, hi, lo)
+    st = branch == STABLE
+    if np.any(st):
+        rho = rho.copy()
+        rho[st] = stable_density(model, T[st], p[st], x[st], rho_c)
+    return rho
 
 
-def flash_p_prop(model, ideal, M, x, p, target, key, crit, T_min, T_max, *, xtol=1e-10):
-    """Solve a pure-fluid state from p [Pa] and h [J mol-1] (key 'h') or s [J mol-1 K-1] (key 's').
+def _prop(model, ideal, M, T, rho, x, key):
+    pr = all_properties(model, ideal, M, T, rho, x)
+    slope = pr["cp"] if key == "h" else pr["cp"] / T
+    return pr[key], slope
+
+
+def flash_p_prop_batch(model, ideal, M, x1, p, target, key, crit, T_min, T_max, *, T_guess=None,
+                       max_iter=60):
+    """Solve pure-fluid states from p [Pa] and h [J mol-1] (key 'h') or s [J mol-1 K-1] (key 's').
+
+    Parameters
+    ----------
+    p, target : ndarray (n,)
+    crit : CriticalPoint or None
+    T_min, T_max : float
+        Temperature range supported by the fluid's data and model [K].
+    T_guess : ndarray (n,), optional
+        Warm start, e.g. the neighbouring state of a path [K].
 
     Returns
     -------
-    dict
-        T [K], rho [mol m-3], phase ('liquid', 'gas', 'supercritical', 'two-phase'), q (vapour
-        fraction), rho_l, rho_v (two-phase), report (SolverReport).
+    dict of ndarray (n,)
+        T [K], rho [mol m-3], two (bool), q (vapour fraction, 0 where single-phase), rho_l, rho_v
+        (two-phase elements), report (SolverReport).
 
     Raises
     ------
     ModelRangeError
-        If the target lies outside the temperatures the model and data support at this p.
+        If a target lies outside the temperatures the model and data support at its pressure.
+    ConvergenceError
+        If the Newton iteration fails for an element.
     """
-    x = np.asarray(x, dtype=float)
-    two_phase_model = getattr(model, "has_two_phase", True)
+    p = np.atleast_1d(np.asarray(p, dtype=float))
+    target = np.atleast_1d(np.asarray(target, dtype=float))
+    n = p.size
+    nc = len(model.components)
+    x = np.broadcast_to(np.asarray(x1, dtype=float), (n, nc))
     name = {"h": "enthalpy", "s": "entropy"}[key]
     rho_c = crit.rho if crit is not None else None
-    if two_phase_model and crit is not None and p < crit.p:
-        sat = saturation_temperature(model, p, crit, x, T_min=min(T_min, 0.5 * crit.T))
-        Ts = sat.T
-        pL = all_properties(model, ideal, M, Ts, sat.rho_liq, x)[key]
-        pV = all_properties(model, ideal, M, Ts, sat.rho_vap, x)[key]
-        if pL <= target <= pV:
-            q = (target - pL) / (pV - pL)
-            rho = 1.0 / ((1.0 - q) / sat.rho_liq + q / sat.rho_vap)
-            return dict(T=Ts, rho=rho, phase="two-phase", q=q, rho_l=sat.rho_liq, rho_v=sat.rho_vap,
-                        report=SolverReport(True, sat.report.iterations, 0.0, "saturation + lever rule"))
-        if target < pL:
-            lo, hi, branch = T_min, Ts, "liquid"
-        else:
-            lo, hi, branch = Ts, T_max, "vapor"
-    else:
-        lo, hi, branch = T_min, T_max, "stable"
+    branch = np.full(n, STABLE)
+    lo, hi = np.full(n, float(T_min)), np.full(n, float(T_max))
+    two = np.zeros(n, dtype=bool)
+    q = np.zeros(n)
+    T = np.full(n, np.nan)
+    rho = np.full(n, np.nan)
+    rl, rv = np.full(n, np.nan), np.full(n, np.nan)
+    sub = np.zeros(n, dtype=bool)
+    if getattr(model, "has_two_phase", True) and crit is not None:
+        sub = p < crit.p
+    iters = 0
+    if np.any(sub):
+        sat = saturation_temperature(model, p[sub], crit, x[0], T_min=min(T_min, 0.5 * crit.T))
+        Ts = np.atleast_1d(sat.T)
+        rL, rV = np.atleast_1d(sat.rho_liq), np.atleast_1d(sat.rho_vap)
+        xs = x[sub]
+        pL, _ = _prop(model, ideal, M, Ts, rL, xs, key)
+        pV, _ = _prop(model, ideal, M, Ts, rV, xs, key)
+        ts = target[sub]
+        tol = 1e-9 * (np.abs(pL) + np.abs(pV)) + 1e-9  # saturated states given to round-off count as on the line
+        tw = (pL - tol <= ts) & (ts <= pV + tol)
+        qq = np.clip(np.where(tw, (ts - pL) / np.where(pV > pL, pV - pL, 1.0), 0.0), 0.0, 1.0)
+        idx = np.nonzero(sub)[0]
+        two[idx] = tw
+        q[idx] = qq
+        T[idx[tw]] = Ts[tw]
+        rl[idx], rv[idx] = rL, rV
+        rho[idx[tw]] = 1.0 / ((1.0 - qq[tw]) / rL[tw] + qq[tw] / rV[tw])
+        liq = ~tw & (ts < pL)
+        vap = ~tw & (ts > pV)
+        branch[idx[liq]] = LIQUID_BRANCH
+        hi[idx[liq]] = Ts[liq]
+        branch[idx[vap]] = VAPOR_BRANCH
+        lo[idx[vap]] = Ts[vap]
+        iters = sat.report.iterations
+    todo = np.nonzero(~two)[0]
+    if todo.size:
+        Tt, rt, it = _solve_branch(model, ideal, M, x[todo], p[todo], target[todo], key, branch[todo], lo[todo],
+                                   hi[todo], rho_c, None if T_guess is None else np.atleast_1d(T_guess)[todo],
+                                   name, max_iter)
+        T[todo], rho[todo] = Tt, rt
+        iters += it
+    return dict(T=T, rho=rho, two=two, q=q, rho_l=np.where(two, rl, rho), rho_v=np.where(two, rv, rho),
+                report=SolverReport(True, iters, 0.0, "saturation + lever rule / Newton on T with cp"))
 
-    def f(T):
-        return _prop_at(model, ideal, M, x, T, p, branch, key, rho_c)[0] - target
 
-    flo, fhi = f(lo), f(hi)
-    if flo > 0 or fhi < 0:
-        edge = "below" if flo > 0 else "above"
-        bound = lo if flo > 0 else hi
+def _solve_branch(model, ideal, M, x, p, target, key, branch, lo, hi, rho_c, T_guess, name, max_iter):
+    n = p.size
+    # scan each branch on 12 temperatures to bracket the target (batched)
+    k = 12
+    frac = np.linspace(0.0, 1.0, k)
+    Tg = lo[:, None] + frac * (hi - lo)[:, None]
+    Tg[:, 0] = lo + 1e-9 * np.maximum(hi - lo, 1.0) * (branch == VAPOR_BRANCH)
+    Tg[:, -1] = hi - 1e-9 * np.maximum(hi - lo, 1.0) * (branch == LIQUID_BRANCH)
+    bb = np.repeat(branch, k)
+    rg = _branch_density(model, Tg.ravel(), np.repeat(p, k), np.repeat(x, k, axis=0), bb, rho_c)
+    ok = np.isfinite(rg)
+    vals = np.full(n * k, np.nan)
+    if np.any(ok):
+        vals[ok] = _prop(model, ideal, M, Tg.ravel()[ok], rg[ok], np.repeat(x, k, axis=0)[ok], key)[0]
+    vals = vals.reshape(n, k)
+    f = vals - target[:, None]
+    fin = np.isfinite(f)
+    below = np.where(fin, f <= 0, False)
+    above = np.where(fin, f >= 0, False)
+    # the bracket: last scan point at or below the target, first at or above it
+    i_lo = np.where(below.any(axis=1), k - 1 - np.argmax(below[:, ::-1], axis=1), -1)
+    i_hi = np.where(above.any(axis=1), np.argmax(above, axis=1), -1)
+    bad = (i_lo < 0) | (i_hi < 0)
+    if np.any(bad):
+        j = int(np.nonzero(bad)[0][0])
+        edge_low = i_lo[j] < 0
+        label = {STABLE: "single-phase", LIQUID_BRANCH: "liquid", VAPOR_BRANCH: "vapour"}[int(branch[j])]
         raise ModelRangeError(
-            f"{name} {target:.6g} at p = {p / 1e5:.4f} bar is {edge} the {branch} value at T = {bound:.2f} K, the "
-            f"{'lowest' if flo > 0 else 'highest'} temperature supported here ({T_min:.2f}-{T_max:.2f} K).")
-    if flo == 0:
-        T = lo
-        it = 0
-    elif fhi == 0:
-        T = hi
-        it = 0
+            f"{name} {target[j]:.6g} at p = {p[j] / 1e5:.4f} bar is {'below' if edge_low else 'above'} every {label} "
+            f"state between {lo[j]:.2f} K and {hi[j]:.2f} K, the temperatures supported here "
+            f"({'lowest' if edge_low else 'highest'} bound reached).")
+    a = Tg[np.arange(n), i_lo]
+    b = Tg[np.arange(n), i_hi]
+    fa = f[np.arange(n), i_lo]
+    fb = f[np.arange(n), i_hi]
+    same = a == b
+    T = np.where(same, a, a - fa * (b - a) / np.where(fb != fa, fb - fa, 1.0))
+    if T_guess is not None:
+        inside = (T_guess > np.minimum(a, b)) & (T_guess < np.maximum(a, b))
+        T = np.where(inside & ~same, T_guess, T)
+    lo_b, hi_b = np.minimum(a, b), np.maximum(a, b)
+    done = same.copy()
+    rho = np.full(n, np.nan)
+    for it in range(1, max_iter + 1):
+        act = ~done
+        ia = np.nonzero(act)[0]
+        r = _branch_density(model, T[ia], p[ia], x[ia], branch[ia], rho_c)
+        rho[ia] = r
+        good = np.isfinite(r)
+        val = np.full(ia.size, np.nan)
+        slope = np.full(ia.size, np.nan)
+        if np.any(good):
+            v, s = _prop(model, ideal, M, T[ia][good], r[good], x[ia][good], key)
+            val[good], slope[good] = v, s
+        fval = val - target[ia]
+        # shrink the bracket
+        lo_b[ia] = np.where(good & (fval < 0), T[ia], lo_b[ia])
+        hi_b[ia] = np.where(good & (fval > 0), T[ia], hi_b[ia])
+        step = np.where(good & (slope > 0), fval / np.where(slope > 0, slope, 1.0), np.nan)
+        Tn = T[ia] - step
+        outside = ~np.isfinite(Tn) | (Tn <= lo_b[ia]) | (Tn >= hi_b[ia])
+        Tn = np.where(outside, 0.5 * (lo_b[ia] + hi_b[ia]), Tn)
+        conv = good & ((np.abs(Tn - T[ia]) <= 1e-9) |
+                       (np.abs(fval) <= 1e-10 * np.abs(target[ia]) + 1e-8) |
+                       (hi_b[ia] - lo_b[ia] <= 1e-10))
+        T[ia] = np.where(conv, T[ia], Tn)
+        done[ia] = conv
+        if np.all(done):
+            break
     else:
-        try:
-            T, res = brentq(f, lo, hi, xtol=xtol, rtol=4 * np.finfo(float).eps, maxiter=200, full_output=True)
-        except RuntimeError as exc:  # pragma: no cover - brentq on a bracketed monotone function
-            raise ConvergenceError(f"p-{key} flash did not converge: {exc}",
-                                   SolverReport(False, 200, float("nan"), "Brent on T")) from None
-        it = res.iterations
-    rho = _prop_at(model, ideal, M, x, T, p, branch, key, rho_c)[1]
-    return dict(T=T, rho=rho, phase=None, q=None, rho_l=None, rho_v=None,
-                report=SolverReport(True, it, 0.0, f"Brent on T ({branch} branch)"))
+        j = int(np.nonzero(~done)[0][0])
+        raise ConvergenceError(f"p-{key} flash did not converge at p = {p[j] / 1e5:.4f} bar",
+                               SolverReport(False, max_iter, float("nan"), "Newton on T with cp"))
+    miss = ~np.isfinite(rho)
+    if np.any(miss):
+        rho[miss] = _branch_density(model, T[miss], p[miss], x[miss], branch[miss], rho_c)
+    return T, rho, it
+
+
+def flash_p_prop(model, ideal, M, x, p, target, key, crit, T_min, T_max):
+    """Scalar form of :func:`flash_p_prop_batch`; returns a dict with floats and 'phase'."""
+    r = flash_p_prop_batch(model, ideal, M, x, np.array([p]), np.array([target]), key, crit, T_min, T_max)
+    two = bool(r["two"][0])
+    return dict(T=float(r["T"][0]), rho=float(r["rho"][0]), phase="two-phase" if two else None,
+                q=float(r["q"][0]) if two else None, rho_l=float(r["rho_l"][0]) if two else None,
+                rho_v=float(r["rho_v"][0]) if two else None, report=r["report"])
