@@ -159,31 +159,75 @@ def _solve_branch(model, ideal, M, x, p, target, key, branch, lo, hi, rho_c, T_g
             f"{name} {target[j]:.6g} at p = {p[j] / 1e5:.4f} bar is {'below' if edge_low else 'above'} every {label} "
             f"state between {lo[j]:.2f} K and {hi[j]:.2f} K, the temperatures supported here "
             f"({'lowest' if edge_low else 'highest'} bound reached).")
-    a = Tg[np.arange(n), i_lo]
-    b = Tg[np.arange(n), i_hi]
-    fa = f[np.arange(n), i_lo]
-    fb = f[np.arange(n), i_hi]
+    ar = np.arange(n)
+    a, b = Tg[ar, i_lo], Tg[ar, i_hi]
+    fa, fb = f[ar, i_lo], f[ar, i_hi]
+    rg = rg.reshape(n, k)
+    ra, rb = rg[ar, i_lo], rg[ar, i_hi]
     same = a == b
-    T = np.where(same, a, a - fa * (b - a) / np.where(fb != fa, fb - fa, 1.0))
-    if T_guess is not None:
-        inside = (T_guess > np.minimum(a, b)) & (T_guess < np.maximum(a, b))
-        T = np.where(inside & ~same, T_guess, T)
-    lo_b, hi_b = np.minimum(a, b), np.maximum(a, b)
+    w = np.where(same, 0.0, -fa / np.where(fb != fa, fb - fa, 1.0))
+    T = a + w * (b - a)
+    rho = ra + w * (rb - ra)
+    T_lo, T_hi = np.minimum(a, b), np.maximum(a, b)
+    r_lo, r_hi = np.minimum(ra, rb), np.maximum(ra, rb)
+    # Newton in (T, rho) on p(T, rho) = p*, h(T, rho) = h* (or s), kept inside the scanned box, where the
+    # branch root is the only root; one property evaluation per iteration
     done = same.copy()
+    rho = np.where(same, ra, rho)
+    R = model.R(x)
+    it = 0
+    for it in range(1, 40):
+        ia = np.nonzero(~done)[0]
+        if ia.size == 0:
+            break
+        pr = all_properties(model, ideal, M, T[ia], rho[ia], x[ia])
+        F1 = pr["p"] - p[ia]
+        F2 = pr[key] - target[ia]
+        r_ = rho[ia]
+        if key == "h":
+            a11, a12 = pr["dpdT"], pr["dpdrho"]
+            a21, a22 = pr["cv"] + pr["dpdT"] / r_, (pr["dpdrho"] - T[ia] * pr["dpdT"] / r_) / r_
+        else:
+            a11, a12 = pr["dpdT"], pr["dpdrho"]
+            a21, a22 = pr["cv"] / T[ia], -pr["dpdT"] / (r_ * r_)
+        det = a11 * a22 - a12 * a21
+        dT = (-F1 * a22 + a12 * F2) / det
+        dr = (-a11 * F2 + a21 * F1) / det
+        Tn = np.clip(T[ia] + dT, T_lo[ia], T_hi[ia])
+        rn = np.clip(r_ + dr, r_lo[ia], r_hi[ia])
+        ok = np.isfinite(Tn) & np.isfinite(rn)
+        conv = ok & (np.abs(Tn - T[ia]) <= 1e-10 * T[ia]) & (np.abs(rn - r_) <= 1e-12 * r_) \
+            & (np.abs(F1) <= 1e-9 * p[ia])
+        T[ia] = np.where(ok, Tn, T[ia])
+        rho[ia] = np.where(ok, rn, rho[ia])
+        done[ia] = conv
+    # elements the box Newton did not settle go through the safeguarded Newton on T with cp
+    left = np.nonzero(~done)[0]
+    if left.size:
+        Tl, rl_, it2 = _newton_T(model, ideal, M, x[left], p[left], target[left], key, branch[left], T_lo[left],
+                                 T_hi[left], T[left], rho_c, max_iter)
+        T[left], rho[left] = Tl, rl_
+        it += it2
+    return T, rho, it
+
+
+def _newton_T(model, ideal, M, x, p, target, key, branch, lo_b, hi_b, T, rho_c, max_iter):
+    """Safeguarded Newton on T with the exact slope, a density solve per iteration (robust fallback)."""
+    n = p.size
+    lo_b, hi_b, T = lo_b.copy(), hi_b.copy(), T.copy()
+    done = np.zeros(n, dtype=bool)
     rho = np.full(n, np.nan)
     for it in range(1, max_iter + 1):
-        act = ~done
-        ia = np.nonzero(act)[0]
+        ia = np.nonzero(~done)[0]
         r = _branch_density(model, T[ia], p[ia], x[ia], branch[ia], rho_c)
         rho[ia] = r
         good = np.isfinite(r)
         val = np.full(ia.size, np.nan)
         slope = np.full(ia.size, np.nan)
         if np.any(good):
-            v, s = _prop(model, ideal, M, T[ia][good], r[good], x[ia][good], key)
-            val[good], slope[good] = v, s
+            v, s_ = _prop(model, ideal, M, T[ia][good], r[good], x[ia][good], key)
+            val[good], slope[good] = v, s_
         fval = val - target[ia]
-        # shrink the bracket
         lo_b[ia] = np.where(good & (fval < 0), T[ia], lo_b[ia])
         hi_b[ia] = np.where(good & (fval > 0), T[ia], hi_b[ia])
         step = np.where(good & (slope > 0), fval / np.where(slope > 0, slope, 1.0), np.nan)
@@ -196,15 +240,10 @@ def _solve_branch(model, ideal, M, x, p, target, key, branch, lo, hi, rho_c, T_g
         T[ia] = np.where(conv, T[ia], Tn)
         done[ia] = conv
         if np.all(done):
-            break
-    else:
-        j = int(np.nonzero(~done)[0][0])
-        raise ConvergenceError(f"p-{key} flash did not converge at p = {p[j] / 1e5:.4f} bar",
-                               SolverReport(False, max_iter, float("nan"), "Newton on T with cp"))
-    miss = ~np.isfinite(rho)
-    if np.any(miss):
-        rho[miss] = _branch_density(model, T[miss], p[miss], x[miss], branch[miss], rho_c)
-    return T, rho, it
+            return T, rho, it
+    j = int(np.nonzero(~done)[0][0])
+    raise ConvergenceError(f"p-{key} flash did not converge at p = {p[j] / 1e5:.4f} bar",
+                           SolverReport(False, max_iter, float("nan"), "Newton on T with cp"))
 
 
 def flash_p_prop(model, ideal, M, x, p, target, key, crit, T_min, T_max):

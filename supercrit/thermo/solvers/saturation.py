@@ -98,6 +98,43 @@ def grid_guess(model, T, crit, x):
     return rl, rv
 
 
+def _table(model, crit, x):
+    """Saturation table of a pure model (cached on the model): T, p, rho_L, rho_V at 90 nodes from 0.2 Tc
+    to Tc - 1e-4 K, dense near Tc; used only for starting values, so every answer is still a full solve."""
+    cache = model.__dict__.setdefault("_saturation_table", {})
+    key = (round(crit.T, 12), round(crit.p, 6))
+    if key in cache:
+        return cache[key]
+    u = np.linspace(0.0, 1.0, 90)[1:]
+    T = crit.T - 1e-4 - (crit.T - 1e-4 - 0.2 * crit.T) * u**2
+    T = np.sort(T)
+    xx = np.broadcast_to(np.asarray(x, dtype=float).reshape(-1)[: len(model.components)], T.shape + (len(model.components),))
+    try:
+        rl, rv = grid_guess(model, T, crit, xx)
+        rl, rv, _ = _newton(model, T, rl, rv, xx, 1e-13, 60)
+    except ConvergenceError:
+        cache[key] = None
+        return None
+    R = model.R(xx)
+    p = rv * R * T * (1.0 + model.alphar_derivs(T, rv, xx).A01)
+    good = np.isfinite(p) & (p > 0) & (rl > rv)
+    cache[key] = (T[good], p[good], rl[good], rv[good])
+    return cache[key]
+
+
+def _table_guess(model, T, crit, x):
+    """Starting densities interpolated in u = sqrt(1 - T/Tc) from the cached table, or None."""
+    tab = _table(model, crit, x)
+    if tab is None:
+        return None
+    Tn, _, rl, rv = tab
+    if np.any(T < Tn[0]) or np.any(T > crit.T):
+        return None
+    un = np.sqrt(1.0 - Tn / crit.T)[::-1]
+    u = np.sqrt(np.maximum(1.0 - T / crit.T, 0.0))
+    return np.interp(u, un, rl[::-1]), np.interp(u, un, rv[::-1])
+
+
 def _newton(model, T, rl, rv, x, tol, max_iter):
     """Newton on the Maxwell conditions, element-wise convergence; returns (rho_L, rho_V, report)."""
     rl, rv = rl.copy(), rv.copy()
@@ -177,12 +214,11 @@ def saturation_pressure(model, T, crit, x=(1.0,), *, tol=1e-13, max_iter=60, gue
     elif hasattr(model, "saturation_guess"):
         rl, rv = (np.asarray(g, dtype=float) for g in model.saturation_guess(T))
     else:
-        rl, rv = grid_guess(model, T, crit, xx)
+        tg = _table_guess(model, T, crit, xx[0])
+        rl, rv = tg if tg is not None else grid_guess(model, T, crit, xx)
     try:
         rl, rv, rep = _newton(model, T, rl, rv, xx, tol, max_iter)
     except ConvergenceError:
-        if guess is None and not hasattr(model, "saturation_guess"):
-            raise
         rl, rv = grid_guess(model, T, crit, xx)
         rl, rv, rep = _newton(model, T, rl, rv, xx, tol, max_iter)
     R = model.R(xx)
@@ -215,14 +251,23 @@ def saturation_temperature(model, p, crit, x=(1.0,), *, T_min=None, tol=1e-12, m
             f"above the model's critical pressure {crit.p / 1e5:.4f} bar there is no saturation state.")
     T_lo = np.full(p.shape, T_min if T_min is not None else 0.5 * crit.T)
     T_hi = np.full(p.shape, crit.T)
-    s_lo = saturation_pressure(model, T_lo, crit, x)
-    if np.any(p < s_lo.p * (1.0 - 1e-10)):
+    cache = model.__dict__.setdefault("_psat_at_Tmin", {})
+    if float(T_lo[0]) not in cache:
+        cache[float(T_lo[0])] = float(saturation_pressure(model, float(T_lo[0]), crit, x).p)
+    p_lo = cache[float(T_lo[0])]
+    if np.any(p < p_lo * (1.0 - 1e-10)):
         raise ModelRangeError(
             f"saturation for {'/'.join(model.components)} at p = {np.min(p):.4g} Pa: below the saturation "
-            f"pressure {np.min(s_lo.p):.4g} Pa at the lowest temperature supported ({T_lo[0]:.2f} K).")
-    # start: ln p linear in 1/T between (T_lo, p_lo) and the critical point
-    inv = 1.0 / T_lo + (np.log(p) - np.log(s_lo.p)) / (np.log(crit.p) - np.log(s_lo.p)) * (1.0 / crit.T - 1.0 / T_lo)
-    T = np.clip(1.0 / inv, T_lo, crit.T - 1e-6)
+            f"pressure {p_lo:.4g} Pa at the lowest temperature supported ({T_lo[0]:.2f} K).")
+    tab = None if hasattr(model, "saturation_guess") else _table(model, crit, x)
+    if tab is not None and p_lo >= tab[1][0]:
+        # start: ln p against 1/T interpolated in the cached table
+        T = np.interp(np.log(p), np.log(tab[1]), tab[0])
+    else:
+        # start: ln p linear in 1/T between (T_lo, p_lo) and the critical point
+        inv = 1.0 / T_lo + (np.log(p) - np.log(p_lo)) / (np.log(crit.p) - np.log(p_lo)) * (1.0 / crit.T - 1.0 / T_lo)
+        T = 1.0 / inv
+    T = np.clip(T, T_lo, crit.T - 1e-6)
     sat = saturation_pressure(model, T, crit, x)
     xx = np.broadcast_to(np.asarray(x, dtype=float), T.shape + (len(model.components),))
     R = model.R(xx)
