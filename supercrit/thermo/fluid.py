@@ -225,7 +225,19 @@ class Fluid:
 
             return mixture_state_Tp(self, T, p)
         x = self._xb(T.shape)
-        rho = stable_density(self.model, T, p, x, self._crit.rho if self._crit else None)
+        rho = None
+        warm = self.__dict__.get("_warm_Tp")
+        if T.ndim == 0 and warm is not None and not hasattr(self.model, "density_roots") and self._crit is not None:
+            T0, p0, r0 = warm
+            if abs(float(T) - T0) < 10.0 and abs(float(p) / p0 - 1.0) < 0.2:
+                from .solvers.density import warm_density
+
+                r = warm_density(self.model, float(T), float(p), self.x, r0, self._crit.rho)
+                rho = None if r is None else np.asarray(r)
+        if rho is None:
+            rho = stable_density(self.model, T, p, x, self._crit.rho if self._crit else None)
+        if T.ndim == 0:
+            self.__dict__["_warm_Tp"] = (float(T), float(p), float(rho))
         return State(self.model, self.ideal, self.M_i, T, rho, x, self._label(T, p, rho))
 
     def _state_Trho(self, T, rho):

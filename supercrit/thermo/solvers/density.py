@@ -293,3 +293,38 @@ def _grid_roots(model, T, p, x, rho_c=None, n_grid=160, max_iter=200):
         rep = SolverReport(False, max_iter, float(np.nanmax(np.abs(fc))), "density scan + Illinois")
         raise ConvergenceError(f"{model.name}: density root refinement did not converge", rep)
     return np.sort(np.where(has, c, np.nan), axis=-1)
+
+
+def warm_density(model, T: float, p: float, x, rho0: float, rho_c: float, max_iter: int = 30):
+    """One state's density by Newton on p(rho) from a neighbouring state's density rho0 [mol m-3].
+
+    Accepted only where the root it finds must be the stable one: above Tc (one root), or below Tc
+    on the side of the saturation line that rho0 lies on, with the ancillary vapour pressure at least
+    0.5 % away (so that the branch is certain). Returns None otherwise; the caller then solves in full.
+    """
+    guess_p = getattr(model, "saturation_pressure_guess", None)
+    crit = model.critical_point()
+    if T < crit.T:
+        if guess_p is None or T > crit.T - 0.5:
+            return None
+        ps = float(guess_p(T))
+        liquid = rho0 > rho_c
+        if (liquid and p < 1.005 * ps) or (not liquid and p > 0.995 * ps):
+            return None
+    R = float(model.R(np.asarray(x, dtype=float)))
+    rho = float(rho0)
+    for _ in range(max_iter):
+        d = model.alphar_derivs(T, rho, x)
+        A01, A02 = float(d.A01), float(d.A02)
+        pr = rho * R * T * (1.0 + A01)
+        dp = R * T * (1.0 + 2.0 * A01 + A02)
+        if not (dp > 0.0):
+            return None
+        step = (p - pr) / dp
+        step = max(min(step, 0.5 * rho), -0.5 * rho)
+        rho += step
+        if T < crit.T and ((rho > rho_c) != (rho0 > rho_c)):
+            return None
+        if abs(step) <= 1e-13 * rho:
+            return rho
+    return None
