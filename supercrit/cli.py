@@ -1,8 +1,9 @@
-"""Command line: ``supercrit state`` (and, with the route engine, ``run`` and ``check``).
+"""Command line: ``supercrit run``, ``supercrit check`` and ``supercrit state``.
 
-Exit codes scripts can rely on: 0 computed; 2 invalid input (file, schema, units, unknown component
-or model); 3 a computation that did not converge; 1 only for an unexpected internal error.
-No traceback reaches the user for input errors.
+Exit codes scripts can rely on: 0 computed (whatever the verdicts); 2 invalid input (file, schema, units,
+unknown component or model); 3 a computation that did not converge; 4 an infeasible route when
+``--fail-on-infeasible`` is given; 1 only for an unexpected internal error. No traceback reaches the
+user for input errors.
 """
 from __future__ import annotations
 
@@ -97,6 +98,63 @@ def cmd_state(args) -> int:
     return EXIT_OK
 
 
+DEMO = "co2_extraction_loop.yaml"
+
+
+def _bundled(name: str):
+    from importlib import resources
+
+    return resources.files("supercrit").joinpath("scenarios", name)
+
+
+def cmd_run(args) -> int:
+    from .runner import run_scenario, write_outputs
+    from .units import format_quantity
+
+    path = args.file
+    if path is None:
+        path = str(_bundled(DEMO))
+        print(f"no scenario given: running the bundled demo {DEMO}")
+    run = run_scenario(path, model=args.model)
+    paths = write_outputs(run, args.out, report=not args.no_report)
+    sysu = run.scenario.display_units
+    print(f"scenario {run.scenario.name} - model {run.scenario.fluid.model}")
+    for ra in sorted(run.analysis.routes, key=lambda r: r.rank or 0):
+        se = ra.figures.get("specific_energy") if ra.figures else None
+        extra = f", {se / 3600.0:.1f} kWh/t" if se is not None else ""
+        te = ra.figures.get("thermal_efficiency") if ra.figures else None
+        if te is not None:
+            extra += f", thermal efficiency {te * 100:.1f} %"
+        power = format_quantity(ra.figures["shaft_power"], "power", sysu) if ra.figures else "-"
+        print(f"  {ra.rank}. {ra.route_id}: {ra.verdict.level} (shaft power {power}{extra})")
+        for r in ra.verdict.reasons:
+            if int(r.level) > 0:
+                print(f"       - {r.text}")
+    print("ranking: " + run.analysis.ranking_rule)
+    for kind, p in paths.items():
+        size = p.stat().st_size
+        print(f"wrote {p} ({size / 1e6:.2f} MB)" if size > 1e5 else f"wrote {p}")
+    print(f"\n{CAUTION}")
+    worst = max((int(ra.verdict.level) for ra in run.analysis.routes), default=0)
+    if run.errors and all(int(ra.verdict.level) == 3 for ra in run.analysis.routes):
+        return EXIT_CONVERGENCE
+    if args.fail_on_infeasible and worst >= 2:
+        return 4
+    return EXIT_OK
+
+
+def cmd_check(args) -> int:
+    from .route import build_graph, check_route
+    from .scenario import load_scenario
+
+    sc = load_scenario(args.file)
+    for rt in sc.routes:
+        check_route(build_graph(rt))
+    print(f"{args.file}: valid - {len(sc.routes)} route(s): {', '.join(r.id for r in sc.routes)}; "
+          f"fluid {', '.join(f'{k} {v:g}' for k, v in sc.fluid.components.items())}; model {sc.fluid.model}")
+    return EXIT_OK
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="supercrit",
@@ -115,6 +173,23 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--rho", help='density, e.g. "600 kg/m3"')
     p.add_argument("--units", default="engineering", choices=["engineering", "SI", "US"], help="display units")
     p.set_defaults(func=cmd_state)
+    r = sub.add_parser("run", help="evaluate a scenario and write its report, JSON and CSV under output/",
+                       description="Evaluate every route of a scenario: states after every step, power and duties, "
+                                   "boundary crossings, margins and verdicts, the ranking of the alternatives; write "
+                                   "<name>.html, <name>.json, <name>-streams.csv and <name>-steps.csv. Without FILE "
+                                   "the bundled demo scenario runs.")
+    r.add_argument("file", nargs="?", help="scenario YAML file")
+    r.add_argument("--model", help="override the scenario's equation of state, e.g. peng-robinson or srk")
+    r.add_argument("--out", default="output", help="output folder (default: output)")
+    r.add_argument("--no-report", action="store_true", help="skip the HTML report")
+    r.add_argument("--fail-on-infeasible", action="store_true",
+                   help="exit 4 when any route is infeasible (for use in pipelines)")
+    r.set_defaults(func=cmd_run)
+    c = sub.add_parser("check", help="validate a scenario file without computing it",
+                       description="Validate a scenario: YAML, keys, units, components, step kinds, connections "
+                                   "and route graphs. Every problem is listed with file:line:col.")
+    c.add_argument("file", help="scenario YAML file")
+    c.set_defaults(func=cmd_check)
     return parser
 
 
@@ -139,6 +214,16 @@ def main(argv=None) -> int:
         print(f"error: {exc}", file=sys.stderr)
         return EXIT_INPUT
     except KeyboardInterrupt:  # pragma: no cover
+        return EXIT_INTERNAL
+    except OSError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return EXIT_INPUT
+    except Exception as exc:  # an unexpected internal error: say so plainly, exit 1
+        import traceback
+
+        traceback.print_exc()
+        print(f"internal error (please report it with the scenario file): {type(exc).__name__}: {exc}",
+              file=sys.stderr)
         return EXIT_INTERNAL
 
 

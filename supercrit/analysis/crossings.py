@@ -80,6 +80,29 @@ def _pseudo_critical_T(fluid, p: float) -> float:
     return T
 
 
+def _pseudo_critical_line(fluid):
+    """T_pc(p) as a monotone spline through exact solves at 50 pressures from 1.0001 pc to 60 pc (cached per
+    fluid); used to bracket crossings, which are then located with exact solves."""
+    from scipy.interpolate import PchipInterpolator
+
+    cache = fluid.__dict__.setdefault("_pseudo_critical_cache", {})
+    if "line" not in cache:
+        pc = fluid.critical_point().p
+        u = np.linspace(np.log(1e-4), np.log(59.0), 50)
+        ps = pc * (1.0 + np.exp(u))
+        Ts = np.array([_pseudo_critical_T(fluid, float(pi)) for pi in ps])
+        cache["line"] = (PchipInterpolator(u, Ts), pc)
+    spline, pc = cache["line"]
+
+    def T_pc(p):
+        v = np.log(max(p / pc - 1.0, 1e-12))
+        if v < np.log(1e-4) or v > np.log(59.0):
+            return _pseudo_critical_T(fluid, p)
+        return float(spline(v))
+
+    return T_pc
+
+
 def _pseudo_critical_T_solve(fluid, p: float) -> float:
     if not fluid.is_pure:
         raise ModelRangeError("the pseudo-critical line is computed for pure fluids only")
@@ -184,6 +207,9 @@ def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[f
             return s.T - _pseudo_critical_T(fluid, s.p)
 
         funcs.append(("pseudo-critical", g_pc))
+        if any(float(s.p) > pc for s in states) and len({round(float(s.p), 3) for s in states}) > 3:
+            T_pc = _pseudo_critical_line(fluid)  # a path with many pressures: bracket on the spline first
+            funcs[-1] = ("pseudo-critical", g_pc, lambda s: np.nan if s.p <= pc else s.T - T_pc(float(s.p)))
     if "CO2" in fluid.components:
         funcs.append(("solid-CO2", lambda s: s.T - _freeze_T(s.p)))
     if "min_metal_T" in limits:
@@ -192,11 +218,13 @@ def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[f
         funcs.append(("max-T", lambda s: limits["max_T"] - s.T))
     if "max_p" in limits:
         funcs.append(("max-p", lambda s: limits["max_p"] - s.p))
-    for kind, g in funcs:
+    for item in funcs:
+        kind, g = item[0], item[1]
+        scan = item[2] if len(item) > 2 else g
         vals = []
         for s in states:
             try:
-                vals.append(g(s))
+                vals.append(scan(s))
             except SupercritError:
                 vals.append(np.nan)
         for i in range(len(states) - 1):

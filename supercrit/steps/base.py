@@ -9,6 +9,7 @@ Sign convention: ``power`` (shaft) and ``duty`` (heat) are positive into the flu
 """
 from __future__ import annotations
 
+import contextvars
 from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import Mapping
@@ -20,6 +21,8 @@ from ..thermo.constants import R_CODATA_2018
 from ..thermo.fluid import Fluid
 from ..thermo.state import State
 
+#: while a recycle iterates only the end states of a path are needed; the final pass samples the paths
+SAMPLE_PATHS = contextvars.ContextVar("supercrit_sample_paths", default=True)
 N_SEGMENTS = 20  # segments of a sampled path (>= 20 so that a band crossing is seen; common practice)
 G_STANDARD = 9.80665  # [m s-2] standard acceleration of gravity, 3rd CGPM (1901)
 
@@ -179,7 +182,13 @@ def state_ph(fluid: Fluid, p: float, h: float, T_guess: float | None = None) -> 
 
 
 def sample_ph(fluid: Fluid, p, h, first: State, last: State) -> tuple[State, ...]:
-    """States at (p_k, h_k) between two known end states (the ends are used as given)."""
+    """States at (p_k, h_k) between two known end states (the ends are used as given).
+
+    While a recycle is still iterating (SAMPLE_PATHS false) only the two ends are returned: the interior
+    states change nothing in the balances, and the converged pass samples them in full.
+    """
+    if not SAMPLE_PATHS.get():
+        return (first, last)
     states = [first]
     Tg = float(first.T)
     for pk, hk in zip(p[1:-1], h[1:-1]):

@@ -30,7 +30,7 @@ from ..route import RoutePlan, build_graph, check_route
 from ..thermo.constants import R_CODATA_2018
 from ..thermo.solvers.result import SolverReport
 from ..thermo.state import SUPERCRITICAL
-from .base import StepContext, StepResult, Stream, state_ph
+from .base import SAMPLE_PATHS, StepContext, StepResult, Stream, state_ph
 
 TOL = 1e-10  # tear-stream tolerance, relative
 MAX_ITER = 50
@@ -284,9 +284,14 @@ def solve_route(scenario, route_id: str, *, tol: float = TOL, max_iter: int = MA
     else:
         X = {e: _vector(guess[e]) for e in tears}
         X_prev = G_prev = None
+        token = SAMPLE_PATHS.set(False)  # end states only while iterating; the final pass samples the paths
         while True:
             it += 1
-            results, streams, used = ev.run(guess)
+            try:
+                results, streams, used = ev.run(guess)
+            except BaseException:
+                SAMPLE_PATHS.reset(token)
+                raise
             if not feed_total:
                 feed_total = sum(r.outlets["out"].n for sid, r in results.items() if ev.specs[sid].kind == "feed")
             G = {e: _vector(streams[("new",) + e]) for e in tears}
@@ -298,8 +303,12 @@ def solve_route(scenario, route_id: str, *, tol: float = TOL, max_iter: int = MA
                                         [R_CODATA_2018 * max(streams[("new",) + e].T, 1.0), max(abs(g[-1]), 1.0)]])
                 residual = max(residual, float(np.max(np.abs(g - x) / scale)))
             if residual <= tol:
+                SAMPLE_PATHS.set(True)
+                results, streams, used = ev.run(guess)
+                SAMPLE_PATHS.reset(token)
                 break
             if it >= max_iter:
+                SAMPLE_PATHS.reset(token)
                 raise ConvergenceError(
                     f"route {route.id!r}: the recycle through {', '.join(f'{a}->{b}' for a, b in tears)} did not "
                     f"converge in {max_iter} passes (largest relative change {residual:.2e}, tolerance {tol:.0e}). "

@@ -1,0 +1,225 @@
+"""Plotly figures of the report: drawn only from what the analysis computed.
+
+Every text that came from the scenario file (route and step names) is escaped before it reaches a
+figure, because plotly renders a subset of HTML in names, labels and hover text.
+"""
+from __future__ import annotations
+
+import html
+
+import numpy as np
+import plotly.graph_objects as go
+
+from ..units import display_unit, from_si
+
+ROUTE_COLOURS = ("#0f5257", "#c2571a", "#5b3c88", "#2f7d32", "#8a6d1d", "#1f4e79", "#a4343a", "#3d6b8c")
+BOUNDARY = "#1b263b"
+DOME_FILL = "rgba(27, 38, 59, 0.10)"
+SUPERCRIT_FILL = "rgba(15, 82, 87, 0.07)"
+SOLID_FILL = "rgba(90, 120, 160, 0.18)"
+PAPER = "#fbfaf7"
+
+
+def esc(text) -> str:
+    return html.escape(str(text), quote=True)
+
+
+class Units:
+    """Axis conversion from SI to the display system."""
+
+    def __init__(self, system="engineering"):
+        self.system = system
+        self.u_p = display_unit("pressure", system)
+        self.u_T = display_unit("temperature", system)
+        self.u_h = display_unit("specific_energy", system)
+        self.u_s = display_unit("specific_heat", system)
+        self.u_rho = display_unit("density", system)
+
+    def p(self, v):
+        return from_si(np.asarray(v, dtype=float), "pressure", self.u_p)
+
+    def T(self, v):
+        return from_si(np.asarray(v, dtype=float), "temperature", self.u_T)
+
+    def h(self, v):
+        return from_si(np.asarray(v, dtype=float), "specific_energy", self.u_h)
+
+    def s(self, v):
+        return from_si(np.asarray(v, dtype=float), "specific_heat", self.u_s)
+
+    def rho(self, v):
+        return from_si(np.asarray(v, dtype=float), "density", self.u_rho)
+
+
+def _layout(fig, title, xtitle, ytitle, ylog=False, height=560):
+    fig.update_layout(title=dict(text=title, x=0.01, font=dict(size=16, color=BOUNDARY)), paper_bgcolor=PAPER,
+                      plot_bgcolor="white", height=height, margin=dict(l=70, r=20, t=50, b=60),
+                      legend=dict(orientation="h", y=-0.15, font=dict(size=11)), hovermode="closest",
+                      font=dict(family="Segoe UI, Helvetica, Arial, sans-serif", size=12, color="#222"))
+    fig.update_xaxes(title=xtitle, gridcolor="#e6e2da", zeroline=False)
+    fig.update_yaxes(title=ytitle, gridcolor="#e6e2da", zeroline=False, type="log" if ylog else "linear")
+    return fig
+
+
+def _hover(state_row: dict, u: Units) -> str:
+    parts = [f"T {float(u.T(state_row['T'])):.2f} {u.u_T}", f"p {float(u.p(state_row['p'])):.3f} {u.u_p}"]
+    for k, label, conv, unit in (("rho_mass", "rho", u.rho, u.u_rho), ("h_mass", "h", u.h, u.u_h),
+                                 ("s_mass", "s", u.s, u.u_s)):
+        if state_row.get(k) is not None:
+            parts.append(f"{label} {float(conv(state_row[k])):.4g} {unit}")
+    if state_row.get("Z") is not None:
+        parts.append(f"Z {state_row['Z']:.4f}")
+    parts.append(f"phase {state_row.get('phase', '')}")
+    if state_row.get("vapor_fraction") is not None:
+        parts.append(f"vapour fraction {state_row['vapor_fraction']:.3f}")
+    return "<br>".join(parts)
+
+
+def pt_diagram(diag, routes, u: Units, title="Pressure-temperature: where the routes go"):
+    """P-T diagram: boundary, critical point, cricondenbar/-therm, CO2 triple point and solid region,
+    the supercritical region shaded, every route along its sampled path with arrows, labels and crossings.
+
+    routes: list of dicts with name, colour, segments (list of (step label, T[], p[])), crossings (list of
+    (kind, T, p, hover text)).
+    """
+    fig = go.Figure()
+    allT = [diag.T] + [np.asarray(s[1]) for r in routes for s in r["segments"]]
+    allp = [diag.p] + [np.asarray(s[2]) for r in routes for s in r["segments"]]
+    Tmax = max((float(np.max(a)) for a in allT if np.size(a)), default=400.0) + 20.0
+    pmax = max((float(np.max(a)) for a in allp if np.size(a)), default=1e7) * 1.3
+    pmin = min((float(np.min(a)) for a in allp if np.size(a)), default=1e5) / 1.5
+    if diag.critical is not None:
+        Tc, pc = diag.critical
+        fig.add_trace(go.Scatter(x=u.T([Tc, Tmax, Tmax, Tc, Tc]), y=u.p([pc, pc, pmax, pmax, pc]), fill="toself",
+                                 fillcolor=SUPERCRIT_FILL, line=dict(width=0), name="supercritical region",
+                                 hoverinfo="skip"))
+    if diag.sublimation:
+        Ts, ps = diag.sublimation
+        Tm, pm = diag.melting
+        xs = np.concatenate([Ts, Tm, [Tm[0] - 0.01, Ts[0]]])
+        ys = np.concatenate([ps, pm, [pm[-1], pm[-1]]])
+        fig.add_trace(go.Scatter(x=u.T(Ts), y=u.p(ps), mode="lines", line=dict(color="#5a78a0", width=1.5),
+                                 name="CO2 sublimation line (Span & Wagner 1996)"))
+        fig.add_trace(go.Scatter(x=u.T(Tm), y=u.p(pm), mode="lines", line=dict(color="#5a78a0", width=1.5, dash="dot"),
+                                 name="CO2 melting line (Span & Wagner 1996)"))
+        fig.add_trace(go.Scatter(x=u.T(xs[: len(Ts)].tolist() + [Ts[0]]), y=u.p(ys[: len(Ts)].tolist() + [ps[-1]]),
+                                 fill="toself", fillcolor=SOLID_FILL, line=dict(width=0), name="solid CO2 (dry ice)",
+                                 hoverinfo="skip"))
+        Tt, pt = diag.triple
+        fig.add_trace(go.Scatter(x=u.T([Tt]), y=u.p([pt]), mode="markers", marker=dict(symbol="triangle-up", size=10,
+                                 color="#5a78a0"), name="CO2 triple point",
+                                 hovertext=f"triple point {float(u.T(Tt)):.2f} {u.u_T}, {float(u.p(pt)):.4f} {u.u_p}",
+                                 hoverinfo="text"))
+    if np.size(diag.T):
+        br = np.array(diag.branch)
+        for name, mask, dash in (("bubble line", br == "bubble", "solid"), ("dew line", br == "dew", "dash"),
+                                 ("saturation line", br == "saturation", "solid")):
+            if np.any(mask):
+                fig.add_trace(go.Scatter(x=u.T(diag.T[mask]), y=u.p(diag.p[mask]), mode="lines",
+                                         line=dict(color=BOUNDARY, width=2, dash=dash), name=name))
+    for label, pt_ in (("critical point", diag.critical), ("cricondenbar", diag.cricondenbar),
+                       ("cricondentherm", diag.cricondentherm)):
+        if pt_ is None or (label != "critical point" and diag.critical is not None and pt_ == diag.critical):
+            continue
+        sym = {"critical point": "star", "cricondenbar": "diamond", "cricondentherm": "square"}[label]
+        fig.add_trace(go.Scatter(x=u.T([pt_[0]]), y=u.p([pt_[1]]), mode="markers",
+                                 marker=dict(symbol=sym, size=12, color=BOUNDARY, line=dict(color="white", width=1)),
+                                 name=label, hovertext=f"{label}: {float(u.T(pt_[0])):.2f} {u.u_T}, "
+                                                        f"{float(u.p(pt_[1])):.3f} {u.u_p}", hoverinfo="text"))
+    _route_traces(fig, routes, "T", "p", u.T, u.p)
+    _layout(fig, title, f"temperature [{u.u_T}]", f"pressure [{u.u_p}]", ylog=True)
+    fig.update_yaxes(range=[np.log10(float(u.p(pmin))), np.log10(float(u.p(pmax)))])
+    return fig
+
+
+def _route_traces(fig, routes, xkey, ykey, fx, fy):
+    for r in routes:
+        first = True
+        for label, *xy in r["segments"]:
+            data = dict(zip(("T", "p", "h", "s", "rho"), xy))
+            x, y = np.asarray(data[xkey]), np.asarray(data[ykey])
+            if x.size == 0:
+                continue
+            fig.add_trace(go.Scatter(
+                x=fx(x), y=fy(y), mode="lines+markers", legendgroup=esc(r["name"]), showlegend=first,
+                name=esc(r["name"]), line=dict(color=r["colour"], width=2.5),
+                marker=dict(symbol="arrow", angleref="previous", size=[0] * (x.size - 1) + [11], color=r["colour"]),
+                hovertext=esc(f"{r['name']}: {label}"), hoverinfo="text"))
+            fig.add_trace(go.Scatter(x=fx(x[-1:]), y=fy(y[-1:]), mode="text", text=[esc(label)],
+                                     textposition="top right", textfont=dict(size=10, color=r["colour"]),
+                                     legendgroup=esc(r["name"]), showlegend=False, hoverinfo="skip"))
+            first = False
+        cr = r.get("crossings", [])
+        if cr:
+            fig.add_trace(go.Scatter(x=fx([c[xkey] for c in cr]), y=fy([c[ykey] for c in cr]), mode="markers",
+                                     marker=dict(symbol="x-thin", size=12, line=dict(width=2.5, color=r["colour"])),
+                                     legendgroup=esc(r["name"]), name=esc(f"{r['name']}: crossings"),
+                                     hovertext=[c["hover"] for c in cr], hoverinfo="text"))
+
+
+def ph_diagram(diag, routes, u: Units):
+    """Pressure-enthalpy diagram with the two-phase dome, isotherms and the routes."""
+    fig = go.Figure()
+    _dome(fig, diag.h_liq, diag.p_liq, diag.h_vap, diag.p_vap, u.h, u.p)
+    for Ti, ps, hs, _ in diag.isotherms:
+        fig.add_trace(go.Scatter(x=u.h(hs), y=u.p(ps), mode="lines", line=dict(color="#b8b2a6", width=1),
+                                 name=f"{float(u.T(Ti)):.0f} {u.u_T}", legendgroup="isotherms", showlegend=False,
+                                 hovertext=f"isotherm {float(u.T(Ti)):.1f} {u.u_T}", hoverinfo="text"))
+    _route_traces(fig, routes, "h", "p", u.h, u.p)
+    return _layout(fig, "Pressure-enthalpy: duties read as horizontal distances", f"specific enthalpy [{u.u_h}]",
+                   f"pressure [{u.u_p}]", ylog=True)
+
+
+def ts_diagram(diag, routes, u: Units):
+    """Temperature-entropy diagram with the two-phase dome and the routes."""
+    fig = go.Figure()
+    _dome(fig, diag.s_liq, diag.T_liq, diag.s_vap, diag.T_vap, u.s, u.T)
+    _route_traces(fig, routes, "s", "T", u.s, u.T)
+    return _layout(fig, "Temperature-entropy", f"specific entropy [{u.u_s}]", f"temperature [{u.u_T}]")
+
+
+def _dome(fig, xl, yl, xv, yv, fx, fy):
+    if np.size(xl) + np.size(xv) == 0:
+        return
+    xl, yl, xv, yv = (np.asarray(a) for a in (xl, yl, xv, yv))
+    ol, ov = np.argsort(yl), np.argsort(yv)[::-1]
+    x = np.concatenate([xl[ol], xv[ov]])
+    y = np.concatenate([yl[ol], yv[ov]])
+    fig.add_trace(go.Scatter(x=fx(x), y=fy(y), mode="lines", fill="toself", fillcolor=DOME_FILL,
+                             line=dict(color=BOUNDARY, width=2), name="two-phase region"))
+
+
+def density_spread_figure(spread_rows, u: Units):
+    """Density against pressure along each route's streams under the chosen and the lighter models.
+
+    spread_rows: list of dicts route, model, p[], rho[] (None where the model is out of range).
+    """
+    fig = go.Figure()
+    dashes = ("solid", "dot", "dash", "longdash", "dashdot", "longdashdot", "solid")
+    models = sorted({r["model"] for r in spread_rows})
+    for r in spread_rows:
+        p = np.asarray(r["p"], dtype=float)
+        rho = np.array([np.nan if v is None else v for v in r["rho"]], dtype=float)
+        dash = dashes[models.index(r["model"]) % len(dashes)]
+        fig.add_trace(go.Scatter(x=u.p(p), y=u.rho(rho), mode="lines+markers", connectgaps=False,
+                                 line=dict(color=r["colour"], dash=dash, width=2 if r.get("chosen") else 1.2),
+                                 marker=dict(size=5), name=esc(f"{r['route']} - {r['model']}"),
+                                 hovertext=esc(f"{r['route']} - {r['model']}"), hoverinfo="text+x+y"))
+    _layout(fig, "Density along the streams: chosen model against lighter models", f"pressure [{u.u_p}]",
+            f"density [{u.u_rho}]")
+    fig.update_xaxes(type="log")
+    return fig
+
+
+def comparison_figure(rows, u: Units):
+    """Bar chart of shaft power, heating and cooling duty per route (rows: route, power, heating, cooling [W])."""
+    unit = display_unit("power", u.system)
+    names = [esc(r["route"]) for r in rows]
+    fig = go.Figure()
+    for key, label, colour in (("power", "net shaft power", "#0f5257"), ("heating", "heating duty", "#c2571a"),
+                               ("cooling", "cooling duty", "#3d6b8c")):
+        fig.add_trace(go.Bar(x=names, y=[from_si(r[key], "power", unit) for r in rows], name=label,
+                             marker_color=colour))
+    _layout(fig, "Side by side: power and duties", "route", f"[{unit}]", height=420)
+    fig.update_layout(barmode="group")
+    return fig
