@@ -234,6 +234,7 @@ def _kind_rules(scenario, rr, sid, res, inl, lim, fmt) -> list[Reason]:
             Td = dew_temperature(fl, s.p)
             if Td is not None:
                 m = s.T - Td
+                m = 0.0 if abs(m) < 1e-6 else m  # on the dew line to round-off
                 need = lim.compressor_dew_margin
                 lvl = Level.INFEASIBLE if m <= 1e-6 else Level.WARN if m < need else Level.FEASIBLE
                 out.append(Reason(lvl, sid, "dew-margin",
@@ -274,6 +275,7 @@ def _kind_rules(scenario, rr, sid, res, inl, lim, fmt) -> list[Reason]:
             Tb = bubble_temperature(fl, s.p)
             if Tb is not None:
                 m = Tb - s.T
+                m = 0.0 if abs(m) < 1e-6 else m  # on the bubble line to round-off
                 need = lim.pump_subcooling
                 lvl = Level.INFEASIBLE if m <= 1e-6 else Level.WARN if m < need else Level.FEASIBLE
                 out.append(Reason(lvl, sid, "subcooling",
@@ -309,6 +311,10 @@ def _kind_rules(scenario, rr, sid, res, inl, lim, fmt) -> list[Reason]:
             out.append(Reason(lvl, sid, "separation",
                               f"{sid}: liquid/vapour density ratio {ratio:.2f}; {need:.2f} asked (near-critical "
                               f"separators carry over)", ratio - need, "ratio"))
+        elif inl[0].fluid.is_pure:
+            out.append(Reason(Level.FEASIBLE, sid, "separation",
+                              f"{sid}: the {inl[0].fluid.components[0]} arrives single-phase ({_effective_phase(inl[0].state)}): "
+                              f"only what is not modelled (an extract) drops out here"))
         else:
             out.append(Reason(Level.WARN, sid, "separation", f"{sid}: the feed is single-phase: nothing separates"))
     elif kind == "vessel":
@@ -371,7 +377,7 @@ def route_figures(scenario, rr, steps: tuple[StepAnalysis, ...]) -> dict:
     product = sum(rec.stream.mass_flow for rec in rr.streams if rec.dst in rr.steps
                   and rr.steps[rec.dst].kind == "sink")
     has_expander = any(r.kind == "expand" for r in rr.steps.values())
-    closed = bool(rr.plan.tears) and has_expander and product == 0.0
+    closed = has_expander and _returns_to_feed(rr)
     margins = {}
     for sa in steps:
         for r in sa.reasons:
@@ -384,7 +390,7 @@ def route_figures(scenario, rr, steps: tuple[StepAnalysis, ...]) -> dict:
         "heating_duty": heating,
         "cooling_duty": cooling,
         "product_flow": product,
-        "specific_energy": shaft / product if product > 0 else None,
+        "specific_energy": shaft / product if product > 0 and not closed else None,
         "closed_cycle": closed,
         "net_power": -shaft if closed else None,
         "thermal_efficiency": (-shaft / heating) if closed and heating > 0 else None,
@@ -393,6 +399,15 @@ def route_figures(scenario, rr, steps: tuple[StepAnalysis, ...]) -> dict:
         "recycle_iterations": rr.iterations,
     }
     return fig
+
+
+def _returns_to_feed(rr) -> bool:
+    """A power cycle written open: every sink receives the state a feed started from (1 K, 1 %)."""
+    feeds = [r.outlets["out"] for r in rr.steps.values() if r.kind == "feed" and "out" in r.outlets]
+    sinks = [rec.stream for rec in rr.streams if rec.dst in rr.steps and rr.steps[rec.dst].kind == "sink"]
+    if not feeds or not sinks:
+        return False
+    return all(any(abs(s.T - f.T) < 1.0 and abs(s.p / f.p - 1.0) < 0.01 for f in feeds) for s in sinks)
 
 
 def _kij_checks(scenario, rr, fmt) -> list[Reason]:
@@ -446,6 +461,8 @@ def _kij_checks(scenario, rr, fmt) -> list[Reason]:
                             rule, need = "cricondenbar", scenario.limits.cricondenbar_margin
                     except SupercritError:
                         continue
+                    if base_m is not None and abs(base_m) < 1e-6 and rule != "cricondenbar":
+                        base_m = 0.0
                     flips = base_m is not None and ((base_m >= need) != (m >= need) or (base_m >= 0) != (m >= 0))
                     kindu = "pressure_difference" if rule == "cricondenbar" else "temperature_difference"
                     fm = fmt.dp if rule == "cricondenbar" else fmt.dT

@@ -23,15 +23,17 @@ def path_function(fluid, step_path):
     c = np.asarray(step_path.coordinate, dtype=float)
     p = np.array([float(s.p) for s in states])
     h = np.array([float(s.h) for s in states])
-    order = np.argsort(c, kind="stable")
-    c, p, h = c[order], p[order], h[order]
-    keep = np.concatenate([[True], np.diff(c) > 0])
-    c, p, h = c[keep], p[keep], h[keep]
-    states = [states[i] for i in order[keep]]
-    if c.size < 2:
+    # t runs 0 -> 1 in the step's own direction (a valve's pressure coordinate falls along its path)
+    if c[-1] == c[0]:
         return None
-    c0, c1 = c[0], c[-1]
-    t = (c - c0) / (c1 - c0)
+    t_all = (c - c[0]) / (c[-1] - c[0])
+    keep = np.concatenate([[True], np.diff(t_all) > 0])
+    if not np.all(np.diff(t_all)[np.diff(t_all) != 0] > 0):
+        return None  # a coordinate that is not monotone is not a path parameter
+    t, p, h = t_all[keep], p[keep], h[keep]
+    states = [s for s, k in zip(states, keep) if k]
+    if t.size < 2:
+        return None
     if c.size == 2:
         P = lambda u: p[0] + u * (p[1] - p[0])  # noqa: E731
         H = lambda u: h[0] + u * (h[1] - h[0])  # noqa: E731

@@ -35,7 +35,7 @@ from .base import SAMPLE_PATHS, StepContext, StepResult, Stream, state_ph
 TOL = 1e-10  # tear-stream tolerance, relative
 MAX_ITER = 50
 BALANCE_TOL = 1e-9
-Q_BOUNDS = (-5.0, 0.0)  # Wegstein q bounds (common practice)
+Q_BOUNDS = (-20.0, 0.0)  # Wegstein q bounds: common practice is (-5, 0); -20 lets 95 % recycle loops converge in a few passes
 
 
 @dataclass(frozen=True)
