@@ -158,7 +158,12 @@ class Fluid:
         return lo, hi
 
     def _check_T(self, T):
-        lo, hi = self._T_limits()
+        lims = self.__dict__.get("_T_lims")
+        if lims is None:
+            lims = self.__dict__["_T_lims"] = self._T_limits()
+        lo, hi = lims
+        if np.ndim(T) == 0 and lo <= float(T) <= hi:
+            return
         T = np.asarray(T, dtype=float)
         if np.any(T < lo) or np.any(T > hi):
             bad = float(T.min()) if np.any(T < lo) else float(T.max())
@@ -168,6 +173,10 @@ class Fluid:
 
     def _label(self, T, p, rho):
         """Phase codes of single-phase states (pure fluids; mixtures are labelled by their flash)."""
+        if self._crit is not None and np.ndim(T) == 0 and np.ndim(p) == 0 and np.ndim(rho) == 0:
+            c, T, p, rho = self._crit, float(T), float(p), float(rho)  # one state: the same rule in floats
+            code = (SUPERCRITICAL if p >= c.p else GAS) if T >= c.T else (LIQUID if rho > c.rho else GAS)
+            return np.asarray(code)
         T, p, rho = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float), np.asarray(rho, float))
         if self._crit is not None:
             c = self._crit

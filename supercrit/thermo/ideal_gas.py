@@ -12,6 +12,7 @@ state (Planck-Einstein and power terms, see components.yaml). Models never conta
 from __future__ import annotations
 
 import functools
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -101,6 +102,46 @@ class IdealGasParts:
         S = self.c0 * np.log(T)[..., None] + np.sum(self.pe_n * (u / em1 - np.log(-np.expm1(-u))), axis=-1) \
             + np.sum(self.pw_n * (self.pw_t - 1) * tr, axis=-1)
         return cp, H - self._H_ref, S - self._S_ref
+
+    def all_R_scalar(self, T: float):
+        """:meth:`all_R` for one temperature, as lists of Python floats (same terms in the same order)."""
+        memo = self.__dict__.get("_all_R_memo")
+        if memo is not None and memo[0] == T:
+            return memo[1]
+        rows = self.__dict__.get("_scalar_rows")
+        if rows is None:
+            rows = [(float(self.c0[i]), list(zip(self.pe_n[i].tolist(), self.pe_theta[i].tolist())),
+                     list(zip(self.pw_n[i].tolist(), self.pw_t[i].tolist(), self.pw_Tred[i].tolist())),
+                     float(self._H_ref[i]), float(self._S_ref[i])) for i in range(len(self.c0))]
+            object.__setattr__(self, "_scalar_rows", rows)
+        lnT = math.log(T)
+        cp, H, S = [], [], []
+        for c0, pe, pw, Href, Sref in rows:
+            s_cp = s_H = s_S = None
+            for n, th in pe:
+                u = th / T
+                em1 = math.expm1(u)
+                t_cp = n * u * u * (em1 + 1.0) / (em1 * em1)
+                t_H = n * th / em1
+                t_S = n * (u / em1 - math.log(-math.expm1(-u)))
+                s_cp = t_cp if s_cp is None else s_cp + t_cp
+                s_H = t_H if s_H is None else s_H + t_H
+                s_S = t_S if s_S is None else s_S + t_S
+            w_cp = w_H = w_S = None
+            for n, t, Tr in pw:
+                tr = (Tr / T) ** t
+                t_cp = -n * t * (t - 1) * tr
+                t_H = n * t * tr * T
+                t_S = n * (t - 1) * tr
+                w_cp = t_cp if w_cp is None else w_cp + t_cp
+                w_H = t_H if w_H is None else w_H + t_H
+                w_S = t_S if w_S is None else w_S + t_S
+            cp.append(c0 + s_cp + w_cp)
+            H.append(c0 * T + s_H + w_H - Href)
+            S.append(c0 * lnT + s_S + w_S - Sref)
+        out = (cp, H, S)
+        object.__setattr__(self, "_all_R_memo", (T, out))
+        return out
 
     @functools.cached_property
     def _H_ref(self):

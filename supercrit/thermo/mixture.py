@@ -146,6 +146,17 @@ def _state_from(fluid, results, shape):
 def mixture_state_Tp(fluid, T, p) -> State:
     """Stable mixture state(s) at T [K], p [Pa] (arrays of equal shape give a batch)."""
     T, p = np.broadcast_arrays(np.asarray(T, dtype=float), np.asarray(p, dtype=float))
+    if T.ndim == 0:
+        # one state has no warm start, so its flash is a function of (T, p) alone: kept per Fluid
+        # (path steps and Newton iterations on h(T) revisit the same states)
+        memo = _cache(fluid).setdefault("Tp", {})
+        key = (float(T), float(p))
+        r = memo.get(key)
+        if r is None:
+            if len(memo) >= 4096:
+                memo.clear()
+            r = memo[key] = flash_points(fluid, T, p)[0]
+        return _state_from(fluid, [r], T.shape)
     return _state_from(fluid, flash_points(fluid, T, p), T.shape)
 
 

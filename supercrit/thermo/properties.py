@@ -10,6 +10,8 @@ The ideal-gas part and the h/s reference state are those of :mod:`supercrit.ther
 """
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from .constants import P_REF
@@ -67,6 +69,12 @@ def all_properties(model, ideal, M, T, rho, x) -> dict[str, np.ndarray]:
         kappa_T [Pa-1], alpha_p [K-1], dpdrho [Pa m3 mol-1], dpdT [Pa K-1], M [kg mol-1].
     """
     T, rho, x = np.asarray(T, dtype=float), np.asarray(rho, dtype=float), np.asarray(x, dtype=float)
+    if T.ndim == 0 and rho.ndim == 0 and x.ndim == 1 and hasattr(model, "alphar_derivs_scalar") \
+            and hasattr(ideal, "all_R_scalar"):
+        try:
+            return _all_properties_scalar(model, ideal, M, float(T), float(rho), tuple(x.tolist()))
+        except (ArithmeticError, ValueError):
+            pass  # outside the real domain (e.g. at a pole): the array path gives numpy's inf/NaN
     d = model.alphar_derivs(T, rho, x)
     R = model.R(x)
     RT = R * T
@@ -90,4 +98,35 @@ def all_properties(model, ideal, M, T, rho, x) -> dict[str, np.ndarray]:
         "p": p, "Z": Z, "h": h, "s": s, "u": h - p / rho, "g": h - T * s, "cp": cp, "cv": cv, "w": w,
         "mu_jt": (T * dvdT - 1.0 / rho) / cp, "kappa_T": 1.0 / (rho * dpdrho), "alpha_p": dpdT / (rho * dpdrho),
         "dpdrho": dpdrho, "dpdT": dpdT, "M": Mm,
+    }
+
+
+def _all_properties_scalar(model, ideal, M, T: float, rho: float, x: tuple) -> dict:
+    """:func:`all_properties` of one state with Python floats: the same formulas term by term, without
+    numpy's per-call overhead on 0-d arrays (equal to round-off, tests/thermo/test_fast_paths.py)."""
+    A00, A10, A01, A20, A11, A02 = model.alphar_derivs_scalar(T, rho, x)
+    R = float(model.gas_constant)
+    RT = R * T
+    Z = 1.0 + A01
+    p = rho * RT * Z
+    dpdrho = RT * (1.0 + 2.0 * A01 + A02)
+    dpdT = rho * R * (1.0 + A01 - A11)
+    cp0_i, h0_i, s0_i = ideal.all_R_scalar(T)
+    n = len(x)
+    cp0_R = sum(x[i] * cp0_i[i] for i in range(n))
+    h0_R = sum(x[i] * h0_i[i] for i in range(n))
+    xlnx = sum(xi * math.log(xi) if xi > 0 else 0.0 for xi in x)
+    s0_R = sum(x[i] * s0_i[i] for i in range(n)) - math.log(rho * RT / P_REF) - xlnx
+    h = R * h0_R + RT * (A10 + A01)
+    s = R * s0_R + R * (A10 - A00)
+    cv = R * (cp0_R - 1.0 - A20)
+    cp = cv + T * dpdT * dpdT / (rho * rho * dpdrho)
+    Mm = sum(x[i] * float(M[i]) for i in range(n))
+    w = math.sqrt(max(cp / cv * dpdrho / Mm, 0.0))
+    dvdT = dpdT / (rho * rho * dpdrho)
+    f = np.float64
+    return {
+        "p": f(p), "Z": f(Z), "h": f(h), "s": f(s), "u": f(h - p / rho), "g": f(h - T * s), "cp": f(cp),
+        "cv": f(cv), "w": f(w), "mu_jt": f((T * dvdT - 1.0 / rho) / cp), "kappa_T": f(1.0 / (rho * dpdrho)),
+        "alpha_p": f(dpdT / (rho * dpdrho)), "dpdrho": f(dpdrho), "dpdT": f(dpdT), "M": f(Mm),
     }

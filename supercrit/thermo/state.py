@@ -103,6 +103,18 @@ class State:
         return self._two | self._solid
 
     @functools.cached_property
+    def _any_two(self) -> bool:
+        return bool(np.any(self._two))
+
+    @functools.cached_property
+    def _any_solid(self) -> bool:
+        return bool(np.any(self._solid))
+
+    @functools.cached_property
+    def _any_mixed(self) -> bool:
+        return self._any_two or self._any_solid
+
+    @functools.cached_property
     def _single(self) -> dict:
         return all_properties(self.model, self.ideal, self.M_i, self.T_, self.rho_, self.x_)
 
@@ -114,14 +126,14 @@ class State:
 
     def _avg(self, key: str):
         """Molar property of the state: phase-weighted where two-phase (and solid-weighted where solid)."""
-        if np.any(self._solid):
+        if self._any_solid:
             L, V = self._phases
             f = np.where(self._solid, self.solid_fraction_, 0.0)
             q = self.q_
             S = {"h": self.h_solid_, "s": self.s_solid_}[key]
             mix = (1.0 - f - q) * L[key] + q * V[key] + f * np.where(self._solid, S, 0.0)
             return np.where(self._mixed, mix, self._single[key]) if np.ndim(self._two) else mix
-        if not np.any(self._two):
+        if not self._any_two:
             return self._single[key]
         L, V = self._phases
         q = self.q_
@@ -129,12 +141,12 @@ class State:
         return np.where(self._two, mix, self._single[key]) if np.ndim(self._two) else mix
 
     def _single_only(self, key: str):
-        if np.any(self._solid):
+        if self._any_solid:
             n = int(np.sum(self._solid))
             raise PropertyUndefinedError(
                 f"{key} has no single value in a state holding solid CO2 ({n} state(s) with solid); "
                 f"use the vapor state's value")
-        if np.any(self._two):
+        if self._any_two:
             n = int(np.sum(self._two))
             raise PropertyUndefinedError(
                 f"{key} has no single value inside the two-phase region ({n} state(s) two-phase); "
@@ -148,7 +160,7 @@ class State:
 
     @property
     def p(self):
-        if not np.any(self._mixed):
+        if not self._any_mixed:
             return _out(self._single["p"])
         return _out(np.where(self._mixed, self._phases[1]["p"], self._single["p"]) if np.ndim(self._two)
                     else self._phases[1]["p"])
@@ -208,7 +220,7 @@ class State:
             raise PropertyUndefinedError("vapour fraction is undefined for a supercritical state (one dense "
                                          "phase, neither vapour nor liquid)")
         q = np.where(codes == GAS, 1.0, 0.0)
-        if np.any(self._mixed):
+        if self._any_mixed:
             q = np.where(self._mixed, self.q_, q)
         return _out(q)
 
@@ -236,7 +248,7 @@ class State:
     def _phase_state(self, which: str) -> "State":
         codes = np.asarray(self.phase_)
         has = self._two | (codes == SOLID_LIQUID_VAPOR) | ((codes == SOLID_VAPOR) & (which == "vapor"))
-        if np.all(has) and np.any(self._solid):
+        if np.all(has) and self._any_solid:
             rho, x, code = ((self.rho_l_, self.x_l_, LIQUID) if which == "liquid" else (self.rho_v_, self.x_v_, GAS))
             return State(self.model, self.ideal, self.M_i, self.T_, rho, x, np.full(np.shape(self.T_), code))
         if not np.all(self._two):

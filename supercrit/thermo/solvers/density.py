@@ -30,6 +30,8 @@ choice then still returns the stable root of those found.
 """
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from ...errors import ConvergenceError, InputError
@@ -39,6 +41,10 @@ from .result import SolverReport
 
 def check_Tp(T, p):
     """Raise InputError for non-physical T or p (non-positive or not finite)."""
+    if np.ndim(T) == 0 and np.ndim(p) == 0:
+        t, q = float(T), float(p)
+        if math.isfinite(t) and t > 0 and math.isfinite(q) and q > 0:
+            return
     T, p = np.asarray(T, dtype=float), np.asarray(p, dtype=float)
     if not np.all(np.isfinite(T)) or np.any(T <= 0):
         raise InputError(f"temperature must be a finite positive number of kelvin; got {_first_bad(T, T > 0)} K",
@@ -77,6 +83,11 @@ def stable_density(model, T, p, x, rho_c=None):
     ConvergenceError
         If no stable root exists (only possible for models with a restricted range).
     """
+    if np.ndim(T) == 0 and np.ndim(p) == 0 and np.ndim(x) == 1 and hasattr(model, "density_roots_scalar") \
+            and hasattr(model, "alphar_derivs_scalar"):
+        rho = _stable_density_scalar(model, float(T), float(p), tuple(np.asarray(x, dtype=float).tolist()))
+        if rho is not None:
+            return np.asarray(rho)
     roots = density_roots(model, T, p, x, rho_c)
     if roots.shape[-1] == 1:
         rho = roots[..., 0]
@@ -97,6 +108,34 @@ def stable_density(model, T, p, x, rho_c=None):
         rep = SolverReport(False, 0, float("nan"), "density root search")
         raise ConvergenceError(f"{model.name}: no stable density root found at some (T, p)", rep)
     return rho
+
+
+def _stable_density_scalar(model, T: float, p: float, x: tuple):
+    """:func:`stable_density` of one state with the model's scalar hooks (same root filter, Gibbs choice
+    and tie rule as the array path); None where the array path must decide (no root, or a domain error)."""
+    try:
+        roots = model.density_roots_scalar(T, p, x)
+        if len(roots) > 1:
+            R = float(model.gas_constant)
+            for k, r in enumerate(roots):
+                if r == r:
+                    d = model.alphar_derivs_scalar(T, r, x)
+                    if not R * T * (1.0 + 2.0 * d[2] + d[5]) > 0:
+                        roots[k] = float("nan")
+        ok = [k for k, r in enumerate(roots) if r == r]
+        if not ok:
+            return None
+        if len(ok) == 1:
+            return roots[ok[0]]
+        best, g_best = None, float("inf")
+        for k in ok:
+            d = model.alphar_derivs_scalar(T, roots[k], x)
+            g = (d[0] + d[2] - math.log1p(d[2])) - 1e-15 * k
+            if g < g_best:
+                best, g_best = k, g
+        return roots[best]
+    except (ArithmeticError, ValueError):
+        return None
 
 
 def _scan_roots(model, T, p, x, rho_c=None, n_grid=160, max_iter=200):
@@ -313,9 +352,14 @@ def warm_density(model, T: float, p: float, x, rho0: float, rho_c: float, max_it
             return None
     R = float(model.R(np.asarray(x, dtype=float)))
     rho = float(rho0)
+    scalar = getattr(model, "alphar_derivs_scalar", None)
+    xt = tuple(np.asarray(x, dtype=float).ravel().tolist())
     for _ in range(max_iter):
-        d = model.alphar_derivs(T, rho, x)
-        A01, A02 = float(d.A01), float(d.A02)
+        if scalar is not None:  # the same numbers without numpy's per-call overhead
+            _, _, A01, _, _, A02 = scalar(T, rho, xt)
+        else:
+            d = model.alphar_derivs(T, rho, x)
+            A01, A02 = float(d.A01), float(d.A02)
         pr = rho * R * T * (1.0 + A01)
         dp = R * T * (1.0 + 2.0 * A01 + A02)
         if not (dp > 0.0):

@@ -72,8 +72,11 @@ def rachford_rice(z, K, tol=1e-14, max_iter=60, beta0=0.5):
     Returns beta [-] (may lie outside [0, 1]: negative flash). Safeguarded Newton with bisection.
     Raises ValueError if all K lie on one side of 1 (no root).
     """
-    km1 = K - 1.0
-    kmax, kmin = float(K.max()), float(K.min())
+    # Python floats: a handful of components, where numpy's per-call overhead would dominate
+    km1 = [k - 1.0 for k in np.asarray(K, dtype=float).tolist()]
+    zl = np.asarray(z, dtype=float).tolist()
+    n = len(zl)
+    kmax, kmin = float(np.max(K)), float(np.min(K))
     if not (kmax > 1.0 > kmin):
         raise ValueError("Rachford-Rice has no root: all K on one side of 1")
     lo, hi = 1.0 / (1.0 - kmax), 1.0 / (1.0 - kmin)
@@ -81,12 +84,15 @@ def rachford_rice(z, K, tol=1e-14, max_iter=60, beta0=0.5):
     if not lo < b < hi:
         b = 0.5 * (lo + hi)
     for _ in range(max_iter):
-        den = 1.0 + b * km1
-        t = z * km1 / den
-        f = float(t.sum())
+        f = df = 0.0
+        for i in range(n):
+            den = 1.0 + b * km1[i]
+            t = zl[i] * km1[i] / den
+            f += t
+            df += t * km1[i] / den
         if f == 0.0:
             return b
-        df = -float((t * km1 / den).sum())
+        df = -df
         if f > 0.0:
             lo = b
         else:

@@ -154,7 +154,7 @@ def stability_test(kern, z, p, K_wilson, lnphi_z=None, Z_z=None, pure_trials=Tru
         if np.any(sub):  # only components present in z can appear in the trial phase
             W = np.where(present, W, 0.0)
         W = np.maximum(W, 1e-300) * present
-        if np.allclose(W / W.sum(), z, atol=1e-8):
+        if np.all(np.abs(W / W.sum() - z) <= 1e-8 + 1e-5 * np.abs(z)):  # np.allclose(.., atol=1e-8), unwrapped
             continue
         if np.any(sub):
             tm, w, Zw, it = _trial_subset(kern, d, p, W, present)

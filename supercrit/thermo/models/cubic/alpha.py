@@ -4,6 +4,7 @@ Each returns ``(q, dq/dT, d2q/dT2)`` with shape (..., nc); a_i(T) = ac_i q_i(T)^
 """
 from __future__ import annotations
 
+import math as _math
 from dataclasses import dataclass
 
 import numpy as np
@@ -19,6 +20,11 @@ class ConstantAlpha:
         one = np.ones(np.shape(T) + self.Tc.shape)
         return one, 0.0 * one, 0.0 * one
 
+    def q_scalar(self, T: float):
+        """As :meth:`q` for one temperature, as lists of Python floats (small-nc fast path)."""
+        n = len(self.Tc)
+        return [1.0] * n, [0.0] * n, [0.0] * n
+
 
 @dataclass(frozen=True, eq=False)
 class RedlichKwongAlpha:
@@ -30,6 +36,11 @@ class RedlichKwongAlpha:
         T = np.asarray(T, dtype=float)[..., None]
         q = (T / self.Tc) ** -0.25
         return q, -0.25 * q / T, 0.3125 * q / (T * T)
+
+    def q_scalar(self, T: float):
+        """As :meth:`q` for one temperature, as lists of Python floats (small-nc fast path)."""
+        q = [(T / Tc) ** -0.25 for Tc in self.Tc.tolist()]
+        return q, [-0.25 * v / T for v in q], [0.3125 * v / (T * T) for v in q]
 
 
 @dataclass(frozen=True, eq=False)
@@ -50,6 +61,16 @@ class SoaveAlpha:
         sTTc = np.sqrt(T * self.Tc)
         q = 1.0 + self.m * (1.0 - np.sqrt(T / self.Tc))
         return q, -self.m / (2.0 * sTTc), self.m / (4.0 * T * sTTc)
+
+    def q_scalar(self, T: float):
+        """As :meth:`q` for one temperature, as lists of Python floats (small-nc fast path)."""
+        q, dq, d2q = [], [], []
+        for Tc, m in zip(self.Tc.tolist(), self.m.tolist()):
+            sTTc = _math.sqrt(T * Tc)
+            q.append(1.0 + m * (1.0 - _math.sqrt(T / Tc)))
+            dq.append(-m / (2.0 * sTTc))
+            d2q.append(m / (4.0 * T * sTTc))
+        return q, dq, d2q
 
 
 def m_srk(omega):

@@ -13,6 +13,7 @@ conditions (triple root of the cubic in Z) and are computed, not typed, in :func
 from __future__ import annotations
 
 import functools
+import math
 import math as _math
 from dataclasses import dataclass, field
 
@@ -240,9 +241,88 @@ class CubicModel:
         rho = np.where(ok, 1.0 / np.where(ok, v, 1.0), np.nan)
         return np.sort(rho, axis=-1)
 
+    # -- scalar fast path (one state, Python floats; the same formulas as the array path) ----
+    def _mix_scalar(self, T: float, x: tuple):
+        """(a, da/dT, d2a/dT2, B, D1, D2, bm, cm) for one T [K] and composition x (tuple of floats);
+        the last (T, x) is kept, since solvers evaluate many densities at one state's T and x."""
+        key = (T, x)
+        memo = self.__dict__.get("_mix_memo")
+        if memo is not None and memo[0] == key:
+            return memo[1]
+        lists = self.__dict__.get("_scalar_lists")
+        if lists is None:
+            lists = (np.sqrt(self.ac).tolist(), self._omk.tolist(), np.asarray(self.b, float).tolist(),
+                     np.asarray(self.c, float).tolist())
+            object.__setattr__(self, "_scalar_lists", lists)
+        sac, omk, b, c = lists
+        q, dq, d2q = self.alpha.q_scalar(T)
+        n = len(x)
+        xQ = [x[i] * (sac[i] * q[i]) for i in range(n)]
+        xdQ = [x[i] * (sac[i] * dq[i]) for i in range(n)]
+        xd2Q = [x[i] * (sac[i] * d2q[i]) for i in range(n)]
+        KxQ = [sum(xQ[i] * omk[i][j] for i in range(n)) for j in range(n)]
+        KxdQ = [sum(xdQ[i] * omk[i][j] for i in range(n)) for j in range(n)]
+        a = sum(xQ[i] * KxQ[i] for i in range(n))
+        da = 2.0 * sum(xdQ[i] * KxQ[i] for i in range(n))
+        d2a = 2.0 * (sum(xd2Q[i] * KxQ[i] for i in range(n)) + sum(xdQ[i] * KxdQ[i] for i in range(n)))
+        bm = sum(x[i] * b[i] for i in range(n))
+        cm = sum(x[i] * c[i] for i in range(n))
+        out = (a, da, d2a, bm - cm, self.delta1 * bm + cm, self.delta2 * bm + cm, bm, cm)
+        object.__setattr__(self, "_mix_memo", (key, out))
+        return out
+
+    def alphar_derivs_scalar(self, T: float, rho: float, x: tuple) -> tuple:
+        """(A00, A10, A01, A20, A11, A02) of one state as Python floats; x a tuple of floats.
+
+        Same formulas as :meth:`alphar_derivs` (equal to round-off, tests/thermo/test_fast_paths.py),
+        without the per-call overhead of numpy on 0-d arrays."""
+        a, da, d2a, B, D1, D2, _, _ = self._mix_scalar(T, x)
+        R = self.gas_constant
+        e1, e2 = 1.0 + D1 * rho, 1.0 + D2 * rho
+        if abs(D1 - D2) <= 1e-14 * max(abs(D1) + abs(D2), 1e-300):
+            lam = rho / e1
+        else:
+            lam = _math.log(e1 / e2) / (D1 - D2)
+        Q = e1 * e2
+        lam1 = 1.0 / Q
+        lam2 = -(D1 + D2 + 2.0 * D1 * D2 * rho) / (Q * Q)
+        Brho = B * rho
+        rep = Brho / (1.0 - Brho)
+        psi = a / (R * T)
+        g = (a - T * da) / (R * T)
+        return (-_math.log1p(-Brho) - psi * lam, -lam * g, rep - psi * rho * lam1, -lam * T * d2a / R,
+                -rho * lam1 * g, rep * rep - psi * rho * rho * lam2)
+
+    def density_roots_scalar(self, T: float, p: float, x: tuple) -> list:
+        """:meth:`density_roots` of one state: three slots [mol m-3], ascending, NaN-padded (Python floats)."""
+        a, _, _, _, _, _, bm, cm = self._mix_scalar(T, x)
+        RT = self.gas_constant * T
+        A, Bt = a * p / (RT * RT), bm * p / RT
+        s, P = self.delta1 + self.delta2, self.delta1 * self.delta2
+        zs = _cubic_real_roots_scalar((s - 1.0) * Bt - 1.0, A + P * Bt * Bt - s * Bt * (Bt + 1.0),
+                                      -(A * Bt + P * Bt * Bt * (Bt + 1.0)))
+        out = []
+        for z in zs:
+            v = z * (RT / p) - cm
+            out.append(1.0 / v if (z > Bt and v > 0) else _math.nan)
+        return sorted(out, key=lambda r: (r != r, r))
+
     def phase_kernel(self, T) -> "CubicPhaseKernel":
-        """A :class:`CubicPhaseKernel` at temperature T [K] (mixture flash, stability and envelope work)."""
-        return CubicPhaseKernel(self, T)
+        """A :class:`CubicPhaseKernel` at temperature T [K] (mixture flash, stability and envelope work).
+
+        Kernels are immutable and kept per temperature (the last 256), since path steps and 1-D solves
+        flash repeatedly at the same T."""
+        T = float(T)
+        cache = self.__dict__.get("_kernels")
+        if cache is None:
+            cache = {}
+            object.__setattr__(self, "_kernels", cache)
+        kern = cache.get(T)
+        if kern is None:
+            if len(cache) >= 256:
+                cache.clear()
+            kern = cache[T] = CubicPhaseKernel(self, T)
+        return kern
 
     def critical_point(self) -> CriticalPoint:
         if self.crit is None:
@@ -250,6 +330,50 @@ class CubicModel:
                                   f"critical-point solver, not from the pure-component constants")
         return self.crit
 
+
+
+def _cubic_real_roots_scalar(a2: float, a1: float, a0: float) -> list:
+    """:func:`_cubic_real_roots` for one cubic, step for step (same branches, deflation and polish),
+    with Python floats; three slots ascending, NaN where complex."""
+    nan = _math.nan
+    P = a1 - a2 * a2 / 3.0
+    Q = 2.0 * a2**3 / 27.0 - a2 * a1 / 3.0 + a0
+    D = (Q / 2.0) ** 2 + (P / 3.0) ** 3
+    shift = -a2 / 3.0
+    if D > 0:
+        sq = _math.sqrt(D)
+        u = -Q / 2.0
+        c1 = _math.cbrt(u + (sq if u >= 0 else -sq))
+        c2 = -P / (3.0 * c1) if c1 != 0 else 0.0
+        r1 = c1 + c2 + shift
+    else:
+        Pm = min(P, -1e-300)
+        r = 2.0 * _math.sqrt(-Pm / 3.0)
+        arg = min(max(3.0 * Q / (Pm * r), -1.0), 1.0)
+        phi = _math.acos(arg) / 3.0
+        trig = [r * _math.cos(phi - 2.0 * _math.pi * k / 3.0) + shift for k in range(3)]
+        r1 = trig[0]
+        for t in trig[1:]:
+            if abs(t) > abs(r1):
+                r1 = t
+    b = a2 + r1
+    c = -a0 / r1 if r1 != 0 else a1
+    disc = b * b - 4.0 * c
+    if disc >= 0:
+        sd = _math.sqrt(disc)
+        q = -0.5 * (b + (sd if b >= 0 else -sd))
+        r2, r3 = (q, c / q) if q != 0 else (0.0, 0.0)
+    else:
+        r2 = r3 = nan
+    out = []
+    for z in (r1, r2, r3):
+        for _ in range(2):
+            f = ((z + a2) * z + a1) * z + a0
+            df = (3.0 * z + 2.0 * a2) * z + a1
+            if _math.isfinite(df) and df != 0:
+                z = z - f / df
+        out.append(z)
+    return sorted(out, key=lambda z: (z != z, z))
 
 
 def _cubic_roots_scalar(a2: float, a1: float, a0: float) -> list:
@@ -282,6 +406,9 @@ def _cubic_roots_scalar(a2: float, a1: float, a0: float) -> list:
     return out
 
 
+SMALL_NC = 8  # [-] up to this many components the phase kernel's ln phi runs in Python floats (a speed setting)
+
+
 class CubicPhaseKernel:
     """Fugacity coefficients of one cubic model at fixed T, for any (p, x), with analytic derivatives.
 
@@ -307,6 +434,8 @@ class CubicPhaseKernel:
         self.c = np.asarray(model.c, dtype=float)
         self.d1, self.d2 = float(model.delta1), float(model.delta2)
         self.s, self.P = self.d1 + self.d2, self.d1 * self.d2
+        # few components: ln phi in Python floats (numpy's per-call overhead dominates for small nc)
+        self._lists = (self.aij.tolist(), self.b.tolist()) if len(self.b) <= SMALL_NC else None
 
     # -- volume roots ------------------------------------------------------------------
     def _roots(self, a, bm, p):
@@ -321,7 +450,6 @@ class CubicPhaseKernel:
 
     def _gres(self, Z, A, B):
         """Residual Gibbs energy (g - g_ig(T, p))/RT of a root [-]."""
-        import math
 
         if self.d1 != self.d2:
             L = math.log((Z + self.d1 * B) / (Z + self.d2 * B)) / (B * (self.d1 - self.d2))
@@ -344,8 +472,9 @@ class CubicPhaseKernel:
     # -- fugacity coefficients ---------------------------------------------------------
     def ln_phi(self, x, p, phase="stable"):
         """(ln phi [-] (nc,), Z [-], g_res/RT [-]) at p [Pa], mole fractions x (nc,)."""
-        import math
 
+        if self._lists is not None:
+            return self._ln_phi_lists(x, p, phase)
         ax = self.aij @ x
         a = float(x @ ax)
         bm = float(self.b @ x)
@@ -357,6 +486,28 @@ class CubicPhaseKernel:
         bb = self.b / bm
         lnphi = bb * (Z - 1.0) - math.log(Z - B) - A * L * (2.0 * ax / a - bb)
         return lnphi, Z, Z - 1.0 - math.log(Z - B) - A * L
+
+    def _ln_phi_lists(self, x, p, phase):
+        """:meth:`ln_phi` with Python floats (few components: numpy's per-call overhead dominates);
+        the same formulas term by term (equal to round-off, tests/thermo/test_fast_paths.py)."""
+        aij, b = self._lists
+        xs = x.tolist()
+        n = len(xs)
+        ax = [sum(row[j] * xs[j] for j in range(n)) for row in aij]
+        a = sum(xs[i] * ax[i] for i in range(n))
+        bm = sum(b[i] * xs[i] for i in range(n))
+        Z, A, B = self.pick_Z(a, bm, p, phase)
+        d1, d2 = self.d1, self.d2
+        if d1 != d2:
+            L = math.log((Z + d1 * B) / (Z + d2 * B)) / (B * (d1 - d2))
+        else:
+            L = 1.0 / (Z + d1 * B)
+        Zm1, lzb, AL = Z - 1.0, math.log(Z - B), A * L
+        lnphi = [0.0] * n
+        for i in range(n):
+            bb = b[i] / bm
+            lnphi[i] = bb * Zm1 - lzb - AL * (2.0 * ax[i] / a - bb)
+        return np.array(lnphi), Z, Z - 1.0 - lzb - AL
 
     def ln_phi_and_derivs(self, x, p, phase="stable"):
         """ln phi and derivatives at (T, p, x) for one mole of phase.

@@ -217,6 +217,16 @@ class SpanWagnerCO2:
         return AlpharDerivs(A00=a[(0, 0)], A10=a[(1, 0)], A01=a[(0, 1)],
                             A20=a[(2, 0)], A11=a[(1, 1)], A02=a[(0, 2)])
 
+    def alphar_derivs_scalar(self, T: float, rho: float, x) -> tuple:
+        """(A00, A10, A01, A20, A11, A02) of one state as Python floats (the scalar sums of
+        :meth:`_derivs2_scalar`, which :meth:`alphar_derivs` itself uses for one state)."""
+        tau, delta = self.Tc / T, rho / self.rhoc
+        if (tau == 1.0 and delta == 1.0) or not delta > 0.0:
+            d = self.alphar_derivs(T, rho, x)
+            return tuple(float(v) for v in (d.A00, d.A10, d.A01, d.A20, d.A11, d.A02))
+        v = self._derivs2_scalar(tau, delta)
+        return v[(0, 0)], v[(1, 0)], v[(0, 1)], v[(2, 0)], v[(1, 1)], v[(0, 2)]
+
     def alphar_derivs3(self, T, rho, x) -> AlpharDerivs3:
         """Third-order ``A_ij`` (A30, A21, A12, A03) [-]; parameters as :meth:`alphar`.
 
