@@ -189,6 +189,8 @@ def flash_p_prop_mixture(fluid, p, target, key, T_guess=300.0, K0=None, xtol=1e-
     memo = {"K": K0}
 
     def f(T):
+        if T in memo:  # one answer per temperature, whatever warm start a later call would have
+            return _prop(fluid, memo[T], key) - target
         r = flash_Tp(fluid.model, T, p, fluid.x, Tc, pc, w, K0=memo["K"])
         if r.two_phase:
             memo["K"] = r.K
@@ -211,7 +213,11 @@ def flash_p_prop_mixture(fluid, p, target, key, T_guess=300.0, K0=None, xtol=1e-
                                   f"{lo_lim:.2f} and {hi_lim:.2f} K gives this {key} for {fluid!r}")
         a, fa = b, fb
         step *= 2.0
-    Ts = brentq(f, min(a, b), max(a, b), xtol=xtol, rtol=1e-15, maxiter=200)
+    try:
+        Ts = brentq(f, min(a, b), max(a, b), xtol=xtol, rtol=1e-15, maxiter=200)
+    except (ValueError, RuntimeError) as exc:
+        raise ConvergenceError(f"(p = {p / 1e5:.4f} bar, {key} = {target:.6g}) flash of {fluid!r} did not converge: "
+                               f"{exc}", SolverReport(False, 200, float("nan"), "Brent on T around the PT flash")) from None
     r = memo.get(Ts)
     if r is None:
         f(Ts)
