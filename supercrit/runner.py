@@ -129,19 +129,21 @@ def _spread_rows(run: Run, cache: dict) -> list[dict]:
     sc = run.scenario
     rows = []
     for rid, rr in run.result.routes.items():
-        seen, T, p, comp = set(), [], [], None
+        seen, T, p, two, comp = set(), [], [], [], None
         for rec in rr.streams:
             if rec.id in seen:
                 continue
             seen.add(rec.id)
             T.append(rec.stream.T)
             p.append(rec.stream.p)
+            two.append(str(rec.stream.state.phase) != "gas" and str(rec.stream.state.phase) not in
+                       ("liquid", "supercritical"))
             comp = comp or {c: v for c, v in rec.stream.composition.items() if v > 0}
         if not T:
             continue
         order = np.argsort(p)
-        T, p = np.asarray(T)[order], np.asarray(p)[order]
-        spread = model_spread(comp, sc.fluid.model, T, p, cache=cache)
+        T, p, two = np.asarray(T)[order], np.asarray(p)[order], np.asarray(two)[order]
+        spread = model_spread(comp, sc.fluid.model, T, p, cache=cache, two_phase=two)
         for mname, entries in spread.items():
             rows.append({"route": rid, "model": mname, "chosen": mname == sc.fluid.model, "p": p.tolist(),
                          "rho": [e.rho_mass for e in entries]})

@@ -37,17 +37,24 @@ def _fluid(composition, model, constants, kij, cache):
 
 
 def model_spread(composition: dict, chosen_model: str, T, p, *, models=LIGHTER_MODELS, constants=None, kij=None,
-                 cache=None) -> dict[str, list[SpreadEntry]]:
+                 cache=None, two_phase=None) -> dict[str, list[SpreadEntry]]:
     """Z and density at each (T [K], p [Pa]) under the chosen model and each lighter model.
+
+    Each model's single-phase stable root (lowest Gibbs energy) is used: a stream the chosen model finds
+    two-phase (``two_phase[i]`` true) has no single Z and is reported as such for every model.
 
     Returns
     -------
     dict
         model name -> list of SpreadEntry, one per state (same order as T and p).
     """
+    from ..thermo.properties import pressure
+    from ..thermo.solvers.density import stable_density
+
     cache = {} if cache is None else cache
     T = np.atleast_1d(np.asarray(T, dtype=float))
     p = np.atleast_1d(np.asarray(p, dtype=float))
+    two = np.zeros(T.shape, dtype=bool) if two_phase is None else np.asarray(two_phase, dtype=bool)
     names = [chosen_model] + [m for m in models if m != chosen_model]
     ref = None
     out: dict[str, list[SpreadEntry]] = {}
@@ -58,19 +65,23 @@ def model_spread(composition: dict, chosen_model: str, T, p, *, models=LIGHTER_M
         except SupercritError as exc:
             out[name] = [SpreadEntry(name, None, None, None, str(exc)) for _ in T]
             continue
+        rho_c = f._crit.rho if f._crit is not None else None
         for i, (Ti, pi) in enumerate(zip(T, p)):
+            if two[i]:
+                entries.append(SpreadEntry(name, None, None, None, "two-phase at this (T, p)"))
+                continue
             try:
-                st = f.state(T=float(Ti), p=float(pi))
-                if str(st.phase) == "two-phase":
-                    raise SupercritError("two-phase at this (T, p)")
-                rho, Z = float(st.rho_mass), float(st.Z)
+                f._check_T(Ti)
+                rho = float(stable_density(f.model, Ti, pi, f.x, rho_c))
+                Z = float(pressure(f.model, Ti, rho, f.x)) / (rho * float(f.model.R(f.x)) * Ti)
+                rho_m = rho * f.M
             except SupercritError as exc:
                 entries.append(SpreadEntry(name, None, None, None, str(exc).split(". ")[0]))
                 continue
             dev = None
             if ref is not None and ref[i].rho_mass:
-                dev = rho / ref[i].rho_mass - 1.0
-            entries.append(SpreadEntry(name, Z, rho, dev if name != chosen_model else 0.0))
+                dev = rho_m / ref[i].rho_mass - 1.0
+            entries.append(SpreadEntry(name, Z, rho_m, dev if name != chosen_model else 0.0))
         out[name] = entries
         if name == chosen_model:
             ref = entries
