@@ -72,27 +72,41 @@ def pseudo_critical_temperature(fluid, p: float) -> float:
     return _pseudo_critical_T(fluid, p)
 
 
-def _pseudo_critical_T(fluid, p: float) -> float:
+_LINES: dict = {}  # pseudo-critical lines shared by fluids of the same model and composition
+
+
+def _signature(fluid):
+    return (fluid.model_name, tuple(fluid.components), tuple(np.round(fluid.x, 12)),
+            fluid.kij.tobytes() if hasattr(fluid, "kij") else b"")
+
+
+def _pseudo_critical_T(fluid, p: float, T_hint: float | None = None) -> float:
     cache = fluid.__dict__.setdefault("_pseudo_critical_cache", {})
     if p in cache:
         return cache[p]
-    cache[p] = T = _pseudo_critical_T_solve(fluid, p)
+    cache[p] = T = _pseudo_critical_T_solve(fluid, p, T_hint)
     return T
 
 
 def _pseudo_critical_line(fluid):
-    """T_pc(p) as a monotone spline through exact solves at 50 pressures from 1.0001 pc to 60 pc (cached per
-    fluid); used to bracket crossings, which are then located with exact solves."""
+    """T_pc(p) as a monotone spline through exact solves at 36 pressures from 1.0001 pc to 60 pc (each started
+    from its neighbour; cached per model and composition); used to bracket crossings, which are then located
+    with exact solves."""
     from scipy.interpolate import PchipInterpolator
 
-    cache = fluid.__dict__.setdefault("_pseudo_critical_cache", {})
-    if "line" not in cache:
+    key = _signature(fluid)
+    if key not in _LINES:
         pc = fluid.critical_point().p
-        u = np.linspace(np.log(1e-4), np.log(59.0), 50)
+        u = np.linspace(np.log(1e-4), np.log(59.0), 36)
         ps = pc * (1.0 + np.exp(u))
-        Ts = np.array([_pseudo_critical_T(fluid, float(pi)) for pi in ps])
-        cache["line"] = (PchipInterpolator(u, Ts), pc)
-    spline, pc = cache["line"]
+        Ts, hint = [], None
+        for pi in ps:
+            hint = _pseudo_critical_T(fluid, float(pi), hint)
+            Ts.append(hint)
+        if len(_LINES) > 32:
+            _LINES.clear()
+        _LINES[key] = (PchipInterpolator(u, np.array(Ts)), pc)
+    spline, pc = _LINES[key]
 
     def T_pc(p):
         v = np.log(max(p / pc - 1.0, 1e-12))
@@ -103,17 +117,26 @@ def _pseudo_critical_line(fluid):
     return T_pc
 
 
-def _pseudo_critical_T_solve(fluid, p: float) -> float:
+def _pseudo_critical_T_solve(fluid, p: float, T_hint: float | None = None) -> float:
     if not fluid.is_pure:
         raise ModelRangeError("the pseudo-critical line is computed for pure fluids only")
     c = fluid.critical_point()
     if p <= c.p:
         raise ModelRangeError(f"no pseudo-critical temperature at p = {p / 1e5:.3f} bar: at or below the "
                               f"critical pressure {c.p / 1e5:.3f} bar")
+    if T_hint is not None:  # the neighbouring pressure's answer: scan 8 K around it first
+        T = np.linspace(max(c.T + 0.01, T_hint - 2.0), T_hint + 6.0, 17)
+        cp = fluid.state(T=T, p=np.full_like(T, p)).cp
+        i = int(np.argmax(cp))
+        if 0 < i < len(T) - 1:
+            return _refine_cp_max(fluid, p, T[i - 1], T[i + 1])
     T = np.linspace(c.T + 0.01, c.T + 150.0, 151)
     cp = fluid.state(T=T, p=np.full_like(T, p)).cp
     i = int(np.argmax(cp))
-    lo, hi = T[max(i - 1, 0)], T[min(i + 1, len(T) - 1)]
+    return _refine_cp_max(fluid, p, T[max(i - 1, 0)], T[min(i + 1, len(T) - 1)])
+
+
+def _refine_cp_max(fluid, p, lo, hi):
     res = minimize_scalar(lambda x: -fluid.state(T=x, p=p).cp, bounds=(lo, hi), method="bounded",
                           options={"xatol": 1e-6})
     return float(res.x)
