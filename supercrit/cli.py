@@ -1,4 +1,4 @@
-"""Command line: ``supercrit run``, ``supercrit check`` and ``supercrit state``.
+"""Command line: ``supercrit run``, ``supercrit check``, ``supercrit state`` and ``supercrit sweep``.
 
 Exit codes scripts can rely on: 0 computed (whatever the verdicts); 2 invalid input (file, schema, units,
 unknown component or model); 3 a computation that did not converge; 4 an infeasible route when
@@ -155,6 +155,29 @@ def cmd_check(args) -> int:
     return EXIT_OK
 
 
+def cmd_sweep(args) -> int:
+    from .sweep import run_sweep
+
+    if args.jobs is not None and args.jobs < 1:
+        raise InputError(f"--jobs {args.jobs}: give 1 or more worker processes", "--jobs")
+    say = lambda text: print(text, flush=True)  # noqa: E731
+    try:
+        out = run_sweep(args.file, args.out, jobs=args.jobs, resume=args.resume, scheduler=args.scheduler,
+                        report=not args.no_report, announce=say)
+    except KeyboardInterrupt:
+        print("\nstopped: the finished variants are kept in the results log; run the same command with --resume "
+              "to compute only the missing ones", file=sys.stderr)
+        return EXIT_INTERNAL
+    kept = f", {out.resumed} kept from before" if out.resumed else ""
+    print(f"{out.computed} variant(s) computed{kept}, {out.failed} failed; {len(out.records)} of "
+          f"{out.spec.count} in the results")
+    for kind, p in out.paths.items():
+        if p.exists():
+            print(f"wrote {p}")
+    print(f"\n{CAUTION}")
+    return EXIT_CONVERGENCE if out.all_failed else EXIT_OK
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="supercrit",
@@ -190,6 +213,20 @@ def build_parser() -> argparse.ArgumentParser:
                                    "and route graphs. Every problem is listed with file:line:col.")
     c.add_argument("file", help="scenario YAML file")
     c.set_defaults(func=cmd_check)
+    w = sub.add_parser("sweep", help="evaluate every variant of a scenario's sweep: section",
+                       description="Evaluate every variant of the scenario's sweep: section (the count is printed "
+                                   "first) in local processes or on a Dask cluster. Results stream to "
+                                   "<name>-sweep.jsonl as variants finish; the tidy table (<name>-sweep.csv, .json, "
+                                   ".parquet with pyarrow) and the report <name>-sweep.html are written at the end.")
+    w.add_argument("file", help="scenario YAML file with a sweep: section")
+    w.add_argument("--jobs", type=int, help="local worker processes (default: all cores; 1: in this process)")
+    w.add_argument("--out", default="output", help="output folder (default: output)")
+    w.add_argument("--resume", action="store_true",
+                   help="keep the finished variants of an interrupted sweep and compute only the missing ones")
+    w.add_argument("--scheduler", metavar="ADDRESS",
+                   help="run on a Dask cluster, e.g. tcp://10.0.0.5:8786 (needs pip install 'supercrit[dask]')")
+    w.add_argument("--no-report", action="store_true", help="skip the HTML report of the sweep")
+    w.set_defaults(func=cmd_sweep)
     return parser
 
 

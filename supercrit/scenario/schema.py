@@ -17,7 +17,8 @@ from typing import Mapping
 from ..io import Location
 
 __all__ = ["Location", "PortRef", "Limits", "FluidSpec", "FeedSpec", "StepSpec", "RouteSpec", "Scenario",
-           "Param", "StepKind", "STEP_KINDS", "DISPLAY_SYSTEMS", "LIMIT_FIELDS"]
+           "Param", "StepKind", "STEP_KINDS", "DISPLAY_SYSTEMS", "LIMIT_FIELDS", "SweepAxis", "SweepSpec",
+           "SWEEP_COMBINE", "MAX_VARIANTS_DEFAULT"]
 
 DISPLAY_SYSTEMS = ("engineering", "SI", "US")
 _EMPTY: Mapping = MappingProxyType({})
@@ -202,9 +203,71 @@ class RouteSpec:
         raise KeyError(step_id)
 
 
+SWEEP_COMBINE = ("grid", "paired")
+MAX_VARIANTS_DEFAULT = 5000  # guard against an accidental million variants; a sweep may raise it
+
+
+@dataclass(frozen=True)
+class SweepAxis:
+    """One varied setting of a sweep.
+
+    Attributes
+    ----------
+    targets : tuple of str
+        The settings moved together, each ``steps.<step-id>.<param>``, ``feeds.<feed-id>.<T|p|flow>``
+        or ``limits.<name>``; all of one quantity kind.
+    kind : str
+        Quantity kind of the values (a kind of :mod:`supercrit.units`, or ``int`` for counts such as
+        ``stages``); ``flow`` of a feed is ``mass_flow`` or ``molar_flow`` by the unit written.
+    values : tuple of float
+        The values in SI (``int`` for counts), in the order they are swept.
+    written : str
+        How the values were written (``"range 100 bar .. 400 bar step 10 bar"``), for reports.
+    where : Location
+        Where the axis is written.
+    """
+
+    targets: tuple[str, ...]
+    kind: str
+    values: tuple
+    written: str = ""
+    where: Location | None = None
+
+    @property
+    def name(self) -> str:
+        """The first target: the axis label in tables and reports."""
+        return self.targets[0]
+
+
+@dataclass(frozen=True)
+class SweepSpec:
+    """A design-space sweep: ``axes`` combined as a full ``grid`` (every combination, the first axis
+    varying slowest) or ``paired`` (the i-th value of every axis together); evaluated on ``routes``
+    (route ids; every route when the file names none); ``max_variants`` guards the count."""
+
+    axes: tuple[SweepAxis, ...]
+    combine: str = "grid"
+    routes: tuple[str, ...] = ()
+    max_variants: int = MAX_VARIANTS_DEFAULT
+    where: Location | None = None
+
+    @property
+    def count(self) -> int:
+        """Number of variants."""
+        if not self.axes:
+            return 0
+        if self.combine == "paired":
+            return len(self.axes[0].values)
+        n = 1
+        for ax in self.axes:
+            n *= len(ax.values)
+        return n
+
+
 @dataclass(frozen=True)
 class Scenario:
-    """A validated scenario, SI throughout; ``source_hash`` is the sha256 of the file's bytes."""
+    """A validated scenario, SI throughout; ``source_hash`` is the sha256 of the file's bytes;
+    ``sweep`` the design-space sweep written under ``sweep:`` (None when there is none)."""
 
     name: str
     description: str
@@ -215,6 +278,7 @@ class Scenario:
     routes: tuple[RouteSpec, ...]
     source_file: str
     source_hash: str
+    sweep: SweepSpec | None = None
 
     def route(self, route_id: str) -> RouteSpec:
         """The route with this id (KeyError if absent)."""
