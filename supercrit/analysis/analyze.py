@@ -214,6 +214,23 @@ def analyze_step(scenario, rr, sid, res, fmt) -> StepAnalysis:
     return StepAnalysis(sid, kind, tuple(crossings), tuple(uniq), Verdict.of(uniq))
 
 
+def _pseudo_critical_inlet(sid, machine, s, lim, fmt) -> list[Reason]:
+    """A dense-phase machine inlet within ``critical_band_T`` of the pseudo-critical line: a warning."""
+    fl = s.fluid
+    if not fl.is_pure or fl._crit is None:
+        return []
+    try:
+        Tpc = pseudo_critical_temperature(fl, s.p)
+    except SupercritError:
+        return []
+    m = abs(s.T - Tpc)
+    if m >= lim.critical_band_T:
+        return []
+    return [Reason(Level.WARN, sid, "pseudo-critical-inlet",
+                   f"{sid}: dense-phase {machine} inlet {fmt.dT(m)} from the pseudo-critical temperature {fmt.T(Tpc)} "
+                   f"at {fmt.p(s.p)}; {fmt.dT(lim.critical_band_T)} asked", m, "temperature_difference")]
+
+
 def _kind_rules(scenario, rr, sid, res, inl, lim, fmt) -> list[Reason]:
     out: list[Reason] = []
     kind = res.kind
@@ -240,17 +257,8 @@ def _kind_rules(scenario, rr, sid, res, inl, lim, fmt) -> list[Reason]:
                 out.append(Reason(lvl, sid, "dew-margin",
                                   f"{sid}: inlet {fmt.dT(m)} above its dew point ({fmt.T(Td)} at {fmt.p(s.p)}); "
                                   f"{fmt.dT(need)} asked", m, "temperature_difference"))
-        elif ph == "supercritical" and fl.is_pure and fl._crit is not None:
-            try:
-                Tpc = pseudo_critical_temperature(fl, s.p)
-                m = abs(s.T - Tpc)
-                if m < lim.critical_band_T:
-                    out.append(Reason(Level.WARN, sid, "pseudo-critical-inlet",
-                                      f"{sid}: dense-phase inlet {fmt.dT(m)} from the pseudo-critical temperature "
-                                      f"{fmt.T(Tpc)} at {fmt.p(s.p)}; {fmt.dT(lim.critical_band_T)} asked", m,
-                                      "temperature_difference"))
-            except SupercritError:
-                pass
+        elif ph == "supercritical":
+            out.extend(_pseudo_critical_inlet(sid, "compressor", s, lim, fmt))
         stage_out = [sp.states[-1] for sp in res.paths if sp.label.startswith("stage") or sp.label == "main"]
         stage_in = [sp.states[0] for sp in res.paths if sp.label.startswith("stage") or sp.label == "main"]
         for k, (a, b) in enumerate(zip(stage_in, stage_out)):
@@ -281,16 +289,8 @@ def _kind_rules(scenario, rr, sid, res, inl, lim, fmt) -> list[Reason]:
                 out.append(Reason(lvl, sid, "subcooling",
                                   f"{sid}: inlet subcooled {fmt.dT(m)} below its bubble point ({fmt.T(Tb)} at "
                                   f"{fmt.p(s.p)}); {fmt.dT(need)} asked", m, "temperature_difference"))
-        elif ph == "supercritical" and fl.is_pure and fl._crit is not None:
-            try:
-                Tpc = pseudo_critical_temperature(fl, s.p)
-                m = abs(s.T - Tpc)
-                if m < lim.critical_band_T:
-                    out.append(Reason(Level.WARN, sid, "pseudo-critical-inlet",
-                                      f"{sid}: dense-phase pump inlet {fmt.dT(m)} from the pseudo-critical temperature "
-                                      f"{fmt.T(Tpc)}", m, "temperature_difference"))
-            except SupercritError:
-                pass
+        elif ph == "supercritical":
+            out.extend(_pseudo_critical_inlet(sid, "pump", s, lim, fmt))
     elif kind == "exchange":
         dT = res.extras.get("min_approach_T") if res.extras else None
         if dT is not None:

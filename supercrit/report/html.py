@@ -5,8 +5,6 @@ Every text taken from the scenario file is escaped with html.escape; figure JSON
 """
 from __future__ import annotations
 
-import html
-import json
 from datetime import datetime, timezone
 
 import numpy as np

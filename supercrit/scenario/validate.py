@@ -932,8 +932,8 @@ def _inputs(ctx: Collector, step: RawStep, path: str, sid, kind: StepKind, outle
             return None
         return ()
     if "from" not in step.data:
-        ctx.add(step.where, path, f"the step has no from: (nothing before it in the list); write from: <step-id>, "
-                                  f"or start the route with a step of kind feed")
+        ctx.add(step.where, path, "the step has no from: (nothing before it in the list); write from: <step-id>, "
+                                  "or start the route with a step of kind feed")
         return None
     if kind.inlets == "one":
         if not isinstance(value, str):

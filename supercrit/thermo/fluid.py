@@ -9,7 +9,7 @@ from typing import Mapping
 
 import numpy as np
 
-from ..errors import DataError, InputError, ModelRangeError
+from ..errors import InputError, ModelRangeError
 from .build import build_model, canonical_model_name
 from .components import Component, get_component
 from .ideal_gas import IdealGasParts

@@ -296,7 +296,6 @@ def _grid_roots(model, T, p, x, rho_c=None, n_grid=160, max_iter=200):
         off = np.concatenate([-np.logspace(-6, -0.3, 30), np.logspace(-6, -0.3, 30)])
         extra = np.broadcast_to(rho_c * (1.0 + off), shape + off.shape)
         grid = np.sort(np.concatenate([grid, extra], axis=-1), axis=-1)
-    k = grid.shape[-1]
     Tg = np.broadcast_to(T[..., None], grid.shape)
     xg = np.broadcast_to(x[..., None, :], grid.shape + (x.shape[-1],))
     f = pressure(model, Tg, grid, xg) / p[..., None] - 1.0

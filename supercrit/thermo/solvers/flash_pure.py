@@ -174,7 +174,6 @@ def _solve_branch(model, ideal, M, x, p, target, key, branch, lo, hi, rho_c, T_g
     # branch root is the only root; one property evaluation per iteration
     done = same.copy()
     rho = np.where(same, ra, rho)
-    R = model.R(x)
     it = 0
     for it in range(1, 40):
         ia = np.nonzero(~done)[0]
