@@ -20,7 +20,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from ..errors import InputError
-from .base import N_SEGMENTS, StepPath, StepResult, only_inlet, sample_ph, state_ph, where
+from .base import N_SEGMENTS, SAMPLE_PATHS, StepPath, StepResult, only_inlet, sample_ph, state_ph, where
 
 
 def polytropic_path(fluid, st1, p2: float, eta_p: float, expand: bool = False, n_steps: int | None = None):
@@ -86,6 +86,9 @@ def machine_stage(fluid, st1, p2: float, eta_s: float | None = None, eta_p: floa
     h2 = h1 + (h2s - h1) / eta_s if not expand else h1 - eta_s * (h1 - h2s)
     out = state_ph(fluid, p2, h2, float(st2s.T))
     guess = _eta_p_guess(st1, st2s, r, eta_s, expand) if r != 1.0 else eta_s
+    if not SAMPLE_PATHS.get():
+        # a recycle is still iterating: the outlet above is exact; the path is sampled on the converged pass
+        return out, StepPath(label, "p", np.array([float(st1.p), p2]), (st1, out)), guess, eta_s
     ps, states = polytropic_path(fluid, st1, p2, guess, expand)
     dh_path = float(states[-1].h) - h1
     if dh_path != 0.0 and (h2 - h1) != 0.0:
