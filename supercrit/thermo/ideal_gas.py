@@ -93,15 +93,20 @@ class IdealGasParts:
         T = np.asarray(T, dtype=float)
         u = self._u(T)
         em1 = np.expm1(u)
-        Tb = T[..., None, None]
-        tr = (self.pw_Tred / Tb) ** self.pw_t
-        cp = self.c0 + np.sum(self.pe_n * u * u * (em1 + 1.0) / (em1 * em1), axis=-1) \
-            + np.sum(-self.pw_n * self.pw_t * (self.pw_t - 1) * tr, axis=-1)
-        H = self.c0 * T[..., None] + np.sum(self.pe_n * self.pe_theta / em1, axis=-1) \
-            + np.sum(self.pw_n * self.pw_t * tr * Tb, axis=-1)
-        S = self.c0 * np.log(T)[..., None] + np.sum(self.pe_n * (u / em1 - np.log(-np.expm1(-u))), axis=-1) \
-            + np.sum(self.pw_n * (self.pw_t - 1) * tr, axis=-1)
+        cp = self.c0 + np.sum(self.pe_n * u * u * (em1 + 1.0) / (em1 * em1), axis=-1)
+        H = self.c0 * T[..., None] + np.sum(self.pe_n * self.pe_theta / em1, axis=-1)
+        S = self.c0 * np.log(T)[..., None] + np.sum(self.pe_n * (u / em1 - np.log(-np.expm1(-u))), axis=-1)
+        if self._has_power:  # power terms (N2 only among the packaged components)
+            Tb = T[..., None, None]
+            tr = (self.pw_Tred / Tb) ** self.pw_t
+            cp = cp + np.sum(-self.pw_n * self.pw_t * (self.pw_t - 1) * tr, axis=-1)
+            H = H + np.sum(self.pw_n * self.pw_t * tr * Tb, axis=-1)
+            S = S + np.sum(self.pw_n * (self.pw_t - 1) * tr, axis=-1)
         return cp, H - self._H_ref, S - self._S_ref
+
+    @functools.cached_property
+    def _has_power(self) -> bool:
+        return bool(np.any(self.pw_n != 0.0))
 
     def all_R_scalar(self, T: float):
         """:meth:`all_R` for one temperature, as lists of Python floats (same terms in the same order)."""

@@ -1,7 +1,8 @@
 """Benchmark: Peng-Robinson CO2 (T, p) -> all properties, scalar and batched, against CoolProp in the same run.
 
 Run on demand:  python tests/bench/bench_core.py   (needs the test extras: CoolProp 8.0.0)
-Prints microseconds per state and the ratios. Goals (issue 2): batched throughput >= 3x CoolProp-PR
+Prints microseconds per state and the ratios (batched: best of three calls after a warm-up call;
+per-call figures: mean over at least 0.5 s). Goals (issue 2): batched throughput >= 3x CoolProp-PR
 per-call throughput; a scalar state under 40 us.
 """
 from __future__ import annotations
@@ -42,9 +43,12 @@ def main(n_batch=100_000):
         props(fluid.state(T=float(T[i]), p=float(p[i])))
 
     t_scalar = _timeit(one)
-    t0 = time.perf_counter()
-    props(fluid.state(T=T, p=p))
-    t_batch = (time.perf_counter() - t0) / n_batch
+    props(fluid.state(T=T, p=p))  # warm-up (imports, caches), then the best of three timed calls
+    t_batch = float("inf")
+    for _ in range(3):
+        t0 = time.perf_counter()
+        props(fluid.state(T=T, p=p))
+        t_batch = min(t_batch, (time.perf_counter() - t0) / n_batch)
 
     res = {}
     for backend in ("PR", "HEOS"):

@@ -68,14 +68,18 @@ def _cubic_real_roots(a2, a1, a0):
     c1 = np.cbrt(u + np.where(u >= 0, sq, -sq))
     c2 = np.where(c1 != 0, -P / (3.0 * np.where(c1 != 0, c1, 1.0)), 0.0)
     r_one = c1 + c2 + shift
-    Pm = np.where(one, -1.0, np.minimum(P, -1e-300))
-    r = 2.0 * np.sqrt(-Pm / 3.0)
-    arg = np.clip(3.0 * Q / (Pm * r), -1.0, 1.0)
-    phi = np.arccos(arg) / 3.0
-    trig = np.stack([r * np.cos(phi - 2.0 * np.pi * k / 3.0) + shift for k in range(3)], axis=-1)
-    big_idx = np.argmax(np.abs(trig), axis=-1)
-    r_three = np.take_along_axis(trig, big_idx[..., None], axis=-1)[..., 0]
-    r1 = np.where(one, r_one, r_three)
+    # the trigonometric form only where there are three real roots (element-wise the same arithmetic)
+    r1 = r_one.copy() if r_one.ndim else np.array(r_one)
+    three = ~one
+    if np.any(three):
+        Pm = np.minimum(P[three], -1e-300)
+        r = 2.0 * np.sqrt(-Pm / 3.0)
+        arg = np.clip(3.0 * Q[three] / (Pm * r), -1.0, 1.0)
+        phi = np.arccos(arg) / 3.0
+        sh = shift[three]
+        trig = np.stack([r * np.cos(phi - 2.0 * np.pi * k / 3.0) + sh for k in range(3)], axis=-1)
+        big_idx = np.argmax(np.abs(trig), axis=-1)
+        r1[three] = np.take_along_axis(trig, big_idx[..., None], axis=-1)[..., 0]
     # deflate: the other two roots solve z^2 + b z + c = 0 with b = a2 + r1, c = -a0 / r1
     r1s = np.where(r1 != 0, r1, 1.0)
     b = a2 + r1
