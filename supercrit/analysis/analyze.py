@@ -156,7 +156,7 @@ def _band(fluid, state, lim):
 
 def analyze_step(scenario, rr, sid, res, fmt) -> StepAnalysis:
     spec = rr.specs.get(sid) if rr.specs else None
-    lim = scenario.limits_for(spec) if spec is not None and hasattr(scenario, "limits_for") else scenario.limits
+    lim = scenario.limits_for(spec) if spec is not None else scenario.limits
     kind = res.kind
     reasons: list[Reason] = []
     crossings: list[Crossing] = []
@@ -191,9 +191,9 @@ def analyze_step(scenario, rr, sid, res, fmt) -> StepAnalysis:
                                       f"temperature {fmt.T(lim.min_metal_T)}", float(s0.T) - lim.min_metal_T,
                                       "temperature_difference"))
     # near-critical band on any sampled state
-    for s in all_states:
-        fl = _fluid_of_path(res, "main")
-        b = _band(fl, s, lim) if fl is not None else None
+    fl_main = _fluid_of_path(res, "main")
+    for s in all_states if fl_main is not None else ():
+        b = _band(fl_main, s, lim)
         if b is not None:
             reasons.append(Reason(Level.WARN, sid, "near-critical",
                                   f"{sid}: within {fmt.dT(b[0])} and {fmt.dp(b[1])} of the critical point at "

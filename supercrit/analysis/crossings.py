@@ -39,7 +39,7 @@ class Crossing:
     kind: 'two-phase-entry', 'two-phase-exit', 'critical-isotherm', 'critical-isobar', 'pseudo-critical',
     'solid-CO2', 'min-metal-T', 'max-T', 'max-p', 'model-range'; t: path parameter [-];
     T [K], p [Pa] at the crossing; state: the State there (None for 'model-range');
-    before / after: phase labels either side; side: 'bubble', 'dew' or 'saturation' for two-phase
+    before / after: phase labels either side (for a scalar boundary 'allowed' or 'beyond'); side: 'bubble', 'dew' or 'saturation' for two-phase
     crossings; text: one sentence for the report.
     """
 
@@ -149,6 +149,8 @@ def _freeze_T(p):
 
 
 def _classify(a: str, b: str, pure: bool) -> tuple[str, str]:
+    if "solid" in b and "solid" not in a:
+        return "solid-CO2", ""
     pair = {a, b}
     if "two-phase" in pair:
         other = (pair - {"two-phase"}).pop() if len(pair) == 2 else ""
@@ -234,7 +236,9 @@ def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[f
             T_pc = _pseudo_critical_line(fluid)  # a path with many pressures: bracket on the spline first
             funcs[-1] = ("pseudo-critical", g_pc, lambda s: np.nan if s.p <= pc else s.T - T_pc(float(s.p)))
     if "CO2" in fluid.components:
-        funcs.append(("solid-CO2", lambda s: s.T - _freeze_T(s.p)))
+        # states that already hold solid lie on the sublimation line (g = 0 to round-off): their entry is the
+        # phase-label change above, so the scalar test looks at fluid states only
+        funcs.append(("solid-CO2", lambda s: np.nan if "solid" in str(s.phase) else s.T - _freeze_T(s.p)))
     if "min_metal_T" in limits:
         funcs.append(("min-metal-T", lambda s: s.T - limits["min_metal_T"]))
     if "max_T" in limits:
@@ -258,9 +262,9 @@ def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[f
                 continue
             tstar = brentq(lambda t: g(path(t)), good_t[i], good_t[i + 1], xtol=1e-10, rtol=1e-12)
             st = path(tstar)
-            entering = gb < 0
-            out.append(Crossing(kind, tstar, st.T, st.p, "inside" if not entering else "outside",
-                                "outside" if entering else "inside", "", "", st))
+            # g > 0 on the allowed side of the boundary (fluid, within the limit); g < 0 beyond it
+            before, after = ("allowed", "beyond") if gb < 0 else ("beyond", "allowed")
+            out.append(Crossing(kind, tstar, st.T, st.p, before, after, "", "", st))
     if failure is not None and good_t:
         t_fail, exc = failure
         ta, tb = good_t[-1], t_fail

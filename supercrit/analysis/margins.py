@@ -34,18 +34,6 @@ def bubble_temperature(fluid, p: float) -> float | None:
         return None
 
 
-def bubble_pressure(fluid, T: float) -> float | None:
-    """Bubble (pure: saturation) pressure at T [K] [Pa], or None above the critical temperature."""
-    try:
-        if fluid.is_pure:
-            if fluid._crit is None or T >= fluid.critical_point().T:
-                return None
-            return float(fluid.saturation(T=T).p)
-        return float(fluid.bubble_point(T=T).p)
-    except SupercritError:
-        return None
-
-
 def cricondenbar(fluid) -> float | None:
     """Highest pressure of two-phase coexistence [Pa]: pc for a pure fluid, the envelope's cricondenbar
     for a mixture; None for models without a two-phase region or an envelope that could not be traced."""

@@ -96,14 +96,14 @@ def pt_diagram(diag, routes, u: Units, title="Pressure-temperature: where the ro
     if diag.sublimation:
         Ts, ps = diag.sublimation
         Tm, pm = diag.melting
-        xs = np.concatenate([Ts, Tm, [Tm[0] - 0.01, Ts[0]]])
-        ys = np.concatenate([ps, pm, [pm[-1], pm[-1]]])
+        # the solid region lies left of the sublimation line and, above the triple point, of the melting line
+        xs = np.concatenate([Ts, Tm, [Ts[0], Ts[0]]])
+        ys = np.concatenate([ps, pm, [pm[-1], ps[0]]])
         fig.add_trace(go.Scatter(x=u.T(Ts), y=u.p(ps), mode="lines", line=dict(color="#5a78a0", width=1.5),
                                  name="CO2 sublimation line (Span & Wagner 1996)"))
         fig.add_trace(go.Scatter(x=u.T(Tm), y=u.p(pm), mode="lines", line=dict(color="#5a78a0", width=1.5, dash="dot"),
                                  name="CO2 melting line (Span & Wagner 1996)"))
-        fig.add_trace(go.Scatter(x=u.T(xs[: len(Ts)].tolist() + [Ts[0]]), y=u.p(ys[: len(Ts)].tolist() + [ps[-1]]),
-                                 fill="toself", fillcolor=SOLID_FILL, line=dict(width=0), name="solid CO2 (dry ice)",
+        fig.add_trace(go.Scatter(x=u.T(xs), y=u.p(ys), fill="toself", fillcolor=SOLID_FILL, line=dict(width=0), name="solid CO2 (dry ice)",
                                  hoverinfo="skip"))
         Tt, pt = diag.triple
         fig.add_trace(go.Scatter(x=u.T([Tt]), y=u.p([pt]), mode="markers", marker=dict(symbol="triangle-up", size=10,

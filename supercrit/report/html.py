@@ -50,7 +50,7 @@ def _json(fig) -> str:
     return pio.to_json(fig, validate=False).replace("<", "\\u003c").replace(">", "\\u003e").replace("&", "\\u0026")
 
 
-def _segments(rr, sys_u):
+def _segments(rr):
     """Per step the sampled path (T, p, h, s, rho arrays), in evaluation order."""
     segs = []
     for sid, res in rr.steps.items():
@@ -164,7 +164,7 @@ def build_report(scenario, result, analysis, diagram, spread_rows, *, generated:
     for i, (rid, rr) in enumerate(result.routes.items()):
         colour = ROUTE_COLOURS[i % len(ROUTE_COLOURS)]
         ra = by_id.get(rid)
-        routes_fig.append({"name": rid, "colour": colour, "segments": _segments(rr, u),
+        routes_fig.append({"name": rid, "colour": colour, "segments": _segments(rr),
                            "crossings": _crossing_points(ra, u) if ra else []})
         f = ra.figures if ra else {}
         comp_rows.append({"route": rid, "power": f.get("shaft_power", 0.0), "heating": f.get("heating_duty", 0.0),

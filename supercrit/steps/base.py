@@ -16,7 +16,7 @@ from typing import Mapping
 
 import numpy as np
 
-from ..errors import ConvergenceError, InputError, PropertyUndefinedError, SupercritError
+from ..errors import InputError, PropertyUndefinedError, SupercritError
 from ..thermo.constants import R_CODATA_2018
 from ..thermo.fluid import Fluid
 from ..thermo.state import State
@@ -224,5 +224,3 @@ def only_inlet(inlets: Mapping[str, Stream]) -> Stream:
     return inlets["in"]
 
 
-def fail(spec, message: str):
-    raise ConvergenceError(f"{_where(spec)}: {message}")

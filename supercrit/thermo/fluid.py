@@ -230,7 +230,7 @@ class Fluid:
         check_Tp(T, p)
         self._check_T(T)
         if not self.is_pure and getattr(self.model, "has_two_phase", True):
-            from .mixture import mixture_state_Tp  # noqa: F401  (arrives with the mixtures work)
+            from .mixture import mixture_state_Tp
 
             return mixture_state_Tp(self, T, p)
         x = self._xb(T.shape)

@@ -17,7 +17,6 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..errors import ModelRangeError
 from .components import Component
 from .constants import T_REF
 
@@ -50,16 +49,6 @@ class IdealGasParts:
             pw_n[i, :k], pw_t[i, :k], pw_tr[i, :k] = c.cp0.pw_n, c.cp0.pw_t, c.cp0.pw_Tred
         return cls(tuple(c.name for c in comps), np.array([c.cp0.c0 for c in comps]), pe_n, pe_th, pw_n, pw_t,
                    pw_tr, np.array([c.cp0.T_min for c in comps]), np.array([c.cp0.T_max for c in comps]))
-
-    def check_range(self, T) -> None:
-        """Raise ModelRangeError if any T is outside every component's cp0 correlation range."""
-        T = np.asarray(T, dtype=float)
-        lo, hi = self.T_min.max(), self.T_max.min()
-        if T.size and (np.nanmin(T) < lo or np.nanmax(T) > hi):
-            bad = float(np.nanmin(T)) if np.nanmin(T) < lo else float(np.nanmax(T))
-            raise ModelRangeError(
-                f"ideal-gas heat capacity of {', '.join(self.names)} is valid from {lo:g} K to {hi:g} K; "
-                f"T = {bad:.2f} K is outside. Keep temperatures inside that range.")
 
     def _u(self, T):
         return self.pe_theta / np.asarray(T, dtype=float)[..., None, None]

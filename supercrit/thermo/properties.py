@@ -44,11 +44,6 @@ def reduced_gibbs_residual(model, T, rho, x):
     return d.A00 + d.A01 - np.log1p(d.A01)
 
 
-def molar_mass(M, x):
-    """Molar mass of the mixture [kg mol-1] from component masses M (nc,) and x (..., nc)."""
-    return np.asarray(x, dtype=float) @ M
-
-
 def all_properties(model, ideal, M, T, rho, x) -> dict[str, np.ndarray]:
     """Every single-phase property at (T, rho, x), arrays broadcast over (...).
 

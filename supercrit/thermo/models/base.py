@@ -71,11 +71,3 @@ class Model(Protocol):
 
     def max_density(self, x) -> np.ndarray:
         """Upper bound of physical density roots [mol m-3]."""
-
-
-def as_composition(x, nc: int) -> np.ndarray:
-    """Return ``x`` as a float array of shape (..., nc)."""
-    x = np.asarray(x, dtype=float)
-    if x.ndim == 0 or x.shape[-1] != nc:
-        x = np.broadcast_to(x[..., None] if x.ndim else x, x.shape + (nc,)) if nc == 1 else x
-    return x

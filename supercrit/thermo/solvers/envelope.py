@@ -68,11 +68,6 @@ def wilson_dew_pressure(T, z, Tc, pc, omega):
     return 1.0 / float(np.sum(z / ps))
 
 
-def wilson_bubble_pressure(T, z, Tc, pc, omega):
-    """Bubble pressure [Pa] from Wilson K-values: p = sum z_i psat_i."""
-    return float(np.sum(z * wilson_K(T, 1.0, Tc, pc, omega)))
-
-
 def _labels(crossed):
     return ("liq", "vap") if crossed else ("vap", "liq")  # (feed root, incipient root)
 
@@ -134,9 +129,7 @@ def trace_envelope(model, z, Tc, pc, omega, T_min, p_max=1.0e8, max_points=600, 
         s_new = int(np.argmax(np.abs(dX)))
         if s_new != s:
             dX = dX / dX[s_new]
-            dS = dS * abs(dX[s]) if False else dS
             s = s_new
-        dS = np.sign(dS) * abs(dS)
         # direction: keep moving forward along the curve
         if not pts or len(pts) == 1:
             direction = 1.0 if dX[iP] > 0 else -1.0  # start by raising the pressure

@@ -309,7 +309,7 @@ def _single(kern, z, p, T, Z, tm, iters, why):
 # ---------------------------------------------------------------------------------------------
 # saturation points: Newton in X = (ln K, ln T, ln p) with one specified variable
 
-def sat_residual(model, z, X, incipient_is_y, z_root, w_root, kern_cache=None):
+def sat_residual(model, z, X, incipient_is_y, z_root, w_root):
     """Residuals and Jacobian of the saturation system (Michelsen 1980).
 
     F_i = ln K_i + ln phi_i(y) - ln phi_i(x), F_nc = sum(y - x). With ``incipient_is_y`` the feed

@@ -243,12 +243,3 @@ def _newton_T(model, ideal, M, x, p, target, key, branch, lo_b, hi_b, T, rho_c, 
     j = int(np.nonzero(~done)[0][0])
     raise ConvergenceError(f"p-{key} flash did not converge at p = {p[j] / 1e5:.4f} bar",
                            SolverReport(False, max_iter, float("nan"), "Newton on T with cp"))
-
-
-def flash_p_prop(model, ideal, M, x, p, target, key, crit, T_min, T_max):
-    """Scalar form of :func:`flash_p_prop_batch`; returns a dict with floats and 'phase'."""
-    r = flash_p_prop_batch(model, ideal, M, x, np.array([p]), np.array([target]), key, crit, T_min, T_max)
-    two = bool(r["two"][0])
-    return dict(T=float(r["T"][0]), rho=float(r["rho"][0]), phase="two-phase" if two else None,
-                q=float(r["q"][0]) if two else None, rho_l=float(r["rho_l"][0]) if two else None,
-                rho_v=float(r["rho_v"][0]) if two else None, report=r["report"])
