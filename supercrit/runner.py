@@ -71,7 +71,9 @@ def run_scenario(source, *, model: str | None = None) -> Run:
     return Run(sc, result, analyze_scenario(sc, result, errors), errors)
 
 
-def _num(v):
+def output_value(v):
+    """A value as the outputs keep it: floats to 10 significant digits, None for missing or non-finite,
+    dicts and lists element by element (the same bytes for the same input)."""
     if v is None:
         return None
     if isinstance(v, (bool, np.bool_)):
@@ -82,9 +84,9 @@ def _num(v):
         v = float(v)
         return None if not math.isfinite(v) else float(f"{v:.10g}")
     if isinstance(v, dict):
-        return {str(k): _num(x) for k, x in v.items()}
+        return {str(k): output_value(x) for k, x in v.items()}
     if isinstance(v, (list, tuple)):
-        return [_num(x) for x in v]
+        return [output_value(x) for x in v]
     return v
 
 
@@ -97,20 +99,20 @@ def results_document(run: Run) -> dict:
         routes.append({
             "route": ra.route_id, "rank": ra.rank, "verdict": str(ra.verdict.level),
             "reasons": [{"level": str(r.level), "step": r.step_id, "rule": r.rule, "text": r.text,
-                         "margin": _num(r.margin), "margin_kind": r.margin_kind} for r in ra.verdict.reasons],
-            "key_figures": _num(ra.figures),
+                         "margin": output_value(r.margin), "margin_kind": r.margin_kind} for r in ra.verdict.reasons],
+            "key_figures": output_value(ra.figures),
             "steps": [{"step": sa.step_id, "kind": sa.kind, "verdict": str(sa.verdict.level),
-                       "crossings": [{"kind": c.kind, "side": c.side, "T": _num(c.T), "p": _num(c.p),
+                       "crossings": [{"kind": c.kind, "side": c.side, "T": output_value(c.T), "p": output_value(c.p),
                                       "before": c.before, "after": c.after} for c in sa.crossings]}
                       for sa in ra.steps],
-            "streams": _num(rr.stream_table()) if rr else [],
-            "step_table": _num(rr.step_table()) if rr else [],
+            "streams": output_value(rr.stream_table()) if rr else [],
+            "step_table": output_value(rr.step_table()) if rr else [],
             "recycle_iterations": rr.iterations if rr else None,
-            "balance": {"mass": _num(rr.balance.mass), "energy": _num(rr.balance.energy)} if rr else None,
+            "balance": {"mass": output_value(rr.balance.mass), "energy": output_value(rr.balance.energy)} if rr else None,
             "error": run.errors.get(ra.route_id),
         })
     return {"scenario": sc.name, "description": sc.description, "input_sha256": getattr(sc, "source_hash", ""),
-            "supercrit": __version__, "model": sc.fluid.model, "components": _num(dict(sc.fluid.components)),
+            "supercrit": __version__, "model": sc.fluid.model, "components": output_value(dict(sc.fluid.components)),
             "units": "SI (K, Pa, kg/m3, J/kg, J/kg/K, kg/s, W)", "ranking_rule": run.analysis.ranking_rule,
             "routes": routes}
 

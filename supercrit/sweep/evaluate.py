@@ -8,24 +8,16 @@ variant gives the same record wherever it is computed.
 from __future__ import annotations
 
 import dataclasses
-import math
 import traceback
 
 from ..errors import SupercritError
+from ..runner import output_value as num
 
 #: key figures of a route kept per variant: name -> SI unit
 FIGURES = {"shaft_power": "W", "heating_duty": "W", "cooling_duty": "W", "product_flow": "kg/s",
            "specific_energy": "J/kg", "thermal_efficiency": "-"}
 
 _BASE: dict = {}  # sha256 -> validated Scenario, per process
-
-
-def num(v):
-    """A float as the outputs keep it: 10 significant digits, None for missing or non-finite."""
-    if v is None or isinstance(v, bool):
-        return v
-    v = float(v)
-    return float(f"{v:.10g}") if math.isfinite(v) else None
 
 
 def make_task(text: bytes, scenario, name_hint: str, index: int, values) -> dict:
