@@ -238,6 +238,10 @@ def _kind_rules(scenario, rr, sid, res, inl, lim, fmt) -> list[Reason]:
         s = inl[0]
         st, fl = s.state, s.fluid
         ph = _effective_phase(st)
+        if ph == "liquid" and fl.is_pure:
+            Ts = dew_temperature(fl, s.p)
+            if Ts is not None and abs(s.T - Ts) <= 1e-6:
+                ph = "gas"  # on the saturation line to round-off: saturated vapour, read with its 0 K margin below
         if ph in ("liquid", "two-phase") or "solid" in ph:
             q = ""
             if ph == "two-phase":
@@ -410,6 +414,9 @@ def _returns_to_feed(rr) -> bool:
     return all(any(abs(s.T - f.T) < 1.0 and abs(s.p / f.p - 1.0) < 0.01 for f in feeds) for s in sinks)
 
 
+_PERTURBED: dict = {}
+
+
 def _kij_checks(scenario, rr, fmt) -> list[Reason]:
     """Re-evaluate envelope-dependent margins with each published alternative k_ij; say when a verdict flips."""
     from ..thermo.fluid import Fluid
@@ -420,6 +427,16 @@ def _kij_checks(scenario, rr, fmt) -> list[Reason]:
         return []
     out = []
     model = scenario.fluid.model
+
+    def perturbed(comp, a, b, value):
+        # one perturbed Fluid (and so one envelope trace) per model, composition and k_ij change
+        key = (model, tuple(sorted((c, round(v, 14)) for c, v in comp.items())), a, b, float(value))
+        if key not in _PERTURBED:
+            if len(_PERTURBED) >= 64:
+                _PERTURBED.clear()
+            _PERTURBED[key] = Fluid(comp, model=model, kij={a: {b: float(value)}})
+        return _PERTURBED[key]
+
     for sid, res in rr.steps.items():
         if res.kind not in ("compress", "pump", "pipe"):
             continue
@@ -435,8 +452,7 @@ def _kij_checks(scenario, rr, fmt) -> list[Reason]:
                     continue
                 for set_name, value, _src in kv.alternatives:
                     try:
-                        f2 = Fluid({c: v for c, v in s.composition.items() if v > 0}, model=model,
-                                   kij={a: {b: float(value)}})
+                        f2 = perturbed({c: v for c, v in s.composition.items() if v > 0}, a, b, value)
                         if res.kind == "compress":
                             Td = dew_temperature(f2, s.p)
                             if Td is None:

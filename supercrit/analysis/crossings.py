@@ -137,8 +137,10 @@ def _pseudo_critical_T_solve(fluid, p: float, T_hint: float | None = None) -> fl
 
 
 def _refine_cp_max(fluid, p, lo, hi):
-    res = minimize_scalar(lambda x: -fluid.state(T=x, p=p).cp, bounds=(lo, hi), method="bounded",
-                          options={"xatol": 1e-6})
+    from ..thermo.solvers.flash_near import isobar_walker
+
+    cp = isobar_walker(fluid, p, "cp")  # the one root above Tc, each call started from the previous density
+    res = minimize_scalar(lambda x: -cp(x), bounds=(lo, hi), method="bounded", options={"xatol": 1e-6})
     return float(res.x)
 
 

@@ -42,9 +42,11 @@ def path_function(fluid, step_path):
 
     def path(u: float):
         u = float(min(max(u, 0.0), 1.0))
-        for k, tk in enumerate(t):
-            if u == tk:
-                return states[k]
-        return fluid.state(p=float(P(u)), h=float(H(u)))
+        k = int(np.searchsorted(t, u))
+        if k < t.size and u == t[k]:
+            return states[k]
+        # start from the nearer sample (a warm start only: the facade keeps it only if it is the stable state)
+        near = states[k - 1] if k == t.size or (k > 0 and u - t[k - 1] <= t[k] - u) else states[k]
+        return fluid.state(p=float(P(u)), h=float(H(u)), near=near)
 
     return path, t, states

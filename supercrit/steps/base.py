@@ -154,31 +154,13 @@ class StepContext:
         return np.array([float(comp.get(c, 0.0)) for c in self.components])
 
 
-def state_ph(fluid: Fluid, p: float, h: float, T_guess: float | None = None) -> State:
-    """State at p [Pa], molar h [J mol-1] through the facade.
-
-    With ``T_guess`` a Newton iteration on h(T) at fixed p with (T, p) states is tried first (cheap
-    near a known neighbour); it is accepted only if the (T, p) state's h meets the target to
-    1e-12 relative (of |h| + R T), i.e. it is the unique single-phase state. Otherwise, or when the
-    state is two-phase, the facade's (p, h) flash decides.
-    """
-    if T_guess is not None and np.isfinite(T_guess):
-        T = float(T_guess)
-        try:
-            for _ in range(6):
-                st = fluid.state(T=T, p=p)
-                err = float(st.h) - h
-                if abs(err) <= 1e-12 * (abs(h) + R_CODATA_2018 * T):
-                    return st
-                cp = float(st.cp)
-                step = -err / cp
-                step = max(min(step, 50.0), -50.0)
-                T = T + step
-                if T <= 1.0:
-                    break
-        except (PropertyUndefinedError, SupercritError):
-            pass
-    return fluid.state(p=p, h=h)
+def state_ph(fluid: Fluid, p: float, h: float, near=None) -> State:
+    """State at p [Pa], molar h [J mol-1] through the facade, started from ``near`` (a neighbouring
+    State of the same fluid or a temperature [K]) when one is known; the facade keeps the
+    neighbour-started answer only where it is the stable state (see Fluid.state)."""
+    if near is not None and not isinstance(near, State) and not np.isfinite(float(near)):
+        near = None
+    return fluid.state(p=p, h=h, near=near)
 
 
 def sample_ph(fluid: Fluid, p, h, first: State, last: State) -> tuple[State, ...]:
@@ -190,11 +172,10 @@ def sample_ph(fluid: Fluid, p, h, first: State, last: State) -> tuple[State, ...
     if not SAMPLE_PATHS.get():
         return (first, last)
     states = [first]
-    Tg = float(first.T)
+    prev = first
     for pk, hk in zip(p[1:-1], h[1:-1]):
-        st = state_ph(fluid, float(pk), float(hk), Tg)
-        Tg = float(st.T)
-        states.append(st)
+        prev = state_ph(fluid, float(pk), float(hk), prev)
+        states.append(prev)
     states.append(last)
     return tuple(states)
 

@@ -44,15 +44,15 @@ def polytropic_path(fluid, st1, p2: float, eta_p: float, expand: bool = False, n
     for k in range(n):
         pa, pb = float(ps[k]), float(ps[k + 1])
         pm = pa * math.exp(0.5 * d)
-        ha, Ta = float(st.h), float(st.T)
+        ha = float(st.h)
         k1 = rate(st)
-        s2 = state_ph(fluid, pm, ha + 0.5 * d * k1, Ta)
+        s2 = state_ph(fluid, pm, ha + 0.5 * d * k1, st)
         k2 = rate(s2)
-        s3 = state_ph(fluid, pm, ha + 0.5 * d * k2, float(s2.T))
+        s3 = state_ph(fluid, pm, ha + 0.5 * d * k2, s2)
         k3 = rate(s3)
-        s4 = state_ph(fluid, pb, ha + d * k3, float(s3.T))
+        s4 = state_ph(fluid, pb, ha + d * k3, s3)
         k4 = rate(s4)
-        st = state_ph(fluid, pb, ha + d * (k1 + 2 * k2 + 2 * k3 + k4) / 6.0, float(s4.T))
+        st = state_ph(fluid, pb, ha + d * (k1 + 2 * k2 + 2 * k3 + k4) / 6.0, s4)
         states.append(st)
     return ps, states
 
@@ -74,7 +74,7 @@ def machine_stage(fluid, st1, p2: float, eta_s: float | None = None, eta_p: floa
 
     Returns (outlet State, StepPath, polytropic efficiency used, isentropic efficiency used)."""
     h1, s1 = float(st1.h), float(st1.s)
-    st2s = fluid.state(p=p2, s=s1)
+    st2s = fluid.state(p=p2, s=s1, near=st1)
     h2s = float(st2s.h)
     r = p2 / float(st1.p)
     if eta_p is not None:
@@ -84,7 +84,7 @@ def machine_stage(fluid, st1, p2: float, eta_s: float | None = None, eta_p: floa
         eta_s_used = (h2s - h1) / dh if not expand else dh / (h2s - h1)
         return out, StepPath(label, "p", ps, tuple(states)), eta_p, eta_s_used
     h2 = h1 + (h2s - h1) / eta_s if not expand else h1 - eta_s * (h1 - h2s)
-    out = state_ph(fluid, p2, h2, float(st2s.T))
+    out = state_ph(fluid, p2, h2, st2s)
     guess = _eta_p_guess(st1, st2s, r, eta_s, expand) if r != 1.0 else eta_s
     if not SAMPLE_PATHS.get():
         # a recycle is still iterating: the outlet above is exact; the path is sampled on the converged pass
@@ -153,7 +153,7 @@ def run(spec, inlets, ctx) -> StepResult:
             if T_ic is not None:
                 cooled = fluid.state(T=float(T_ic), p=p_next)
             else:
-                cooled = state_ph(fluid, p_next, float(st.h), float(st.T))
+                cooled = state_ph(fluid, p_next, float(st.h), st)
             hs = np.linspace(float(st.h), float(cooled.h), N_SEGMENTS + 1)
             pp = np.linspace(p_dis, p_next, N_SEGMENTS + 1)
             paths.append(StepPath(f"intercooler {k + 1}", "duty_fraction", np.linspace(0, 1, N_SEGMENTS + 1),

@@ -36,8 +36,8 @@ def run(spec, inlets, ctx) -> StepResult:
                          f"swap hot and cold, or change the outlet temperature", where(spec))
     h_hot_out = hot.h - Q / hot.n if hot.n > 0 else hot.h
     h_cold_out = cold.h + Q / cold.n if cold.n > 0 else cold.h
-    hot_out = state_ph(hot.fluid, ph_out, h_hot_out, hot.T)
-    cold_out = state_ph(cold.fluid, pc_out, h_cold_out, cold.T)
+    hot_out = state_ph(hot.fluid, ph_out, h_hot_out, hot.state)
+    cold_out = state_ph(cold.fluid, pc_out, h_cold_out, cold.state)
     f = np.linspace(0.0, 1.0, N_SEGMENTS + 1)  # duty fraction from the hot inlet end
     hh = hot.h + f * (h_hot_out - hot.h)
     ph = hot.p + f * (ph_out - hot.p)

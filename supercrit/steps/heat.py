@@ -56,7 +56,7 @@ def run(spec, inlets, ctx) -> StepResult:
     elif prm.get("duty") is not None:
         if n <= 0:
             raise InputError("a duty is given but the stream carries no flow", where(spec))
-        out = state_ph(fluid, p_out, s_in.h + sign * float(prm["duty"]) / n, s_in.T)
+        out = state_ph(fluid, p_out, s_in.h + sign * float(prm["duty"]) / n, s_in.state)
     else:
         out = state_at_vapor_fraction(fluid, p_out, float(prm["vapor_fraction"]), spec)
     duty = n * (float(out.h) - s_in.h)

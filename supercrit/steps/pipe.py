@@ -126,15 +126,15 @@ def run(spec, inlets, ctx) -> StepResult:
             return state_ph(fluid, p_new, h_new, T_guess), dmech
 
         p_pred = pa + dpdx_a * dx
-        pred, _ = advance(p_pred, heat(q_a, q_a, cp_a, cp_a, float(st.T)), ua, float(st.T))
+        pred, _ = advance(p_pred, heat(q_a, q_a, cp_a, cp_a, float(st.T)), ua, st)
         rho_b, dpdx_b, q_b, _, cp_b = local(pred)
         Qseg = heat(q_a, q_b, cp_a, cp_b, float(st.T))
         p_new = pa + 0.5 * (dpdx_a + dpdx_b) * dx - G * G * (1.0 / rho_b - 1.0 / rho_a)
         u_b = G / rho_b
-        new, dmech = advance(p_new, Qseg, u_b, float(pred.T))
+        new, dmech = advance(p_new, Qseg, u_b, pred)
         u_new = G / float(new.rho_mass)
         if abs(u_new - u_b) > 1e-9 * max(u_b, 1e-12):
-            new, dmech = advance(p_new, Qseg, u_new, float(new.T))
+            new, dmech = advance(p_new, Qseg, u_new, new)
         duty += Qseg
         mech += dmech
         st = new

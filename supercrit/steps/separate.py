@@ -15,7 +15,7 @@ from .base import StepResult, only_inlet, point_path, require_positive_pressure,
 def run(spec, inlets, ctx) -> StepResult:
     s_in = only_inlet(inlets)
     p = require_positive_pressure(spec, s_in.p - float(spec.params.get("dp") or 0.0), s_in.p)
-    st = state_ph(s_in.fluid, p, s_in.h, s_in.T) if p != s_in.p else s_in.state
+    st = state_ph(s_in.fluid, p, s_in.h, s_in.state) if p != s_in.p else s_in.state
     code = int(st.phase_)
     n = s_in.n
     notes = []

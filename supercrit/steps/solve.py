@@ -230,7 +230,7 @@ def _from_vector(ctx, v: np.ndarray, like: Stream) -> Stream:
     n = float(flows.sum())
     x = flows / n if n > 0 else like.x
     fluid = ctx.fluid(x)
-    st = state_ph(fluid, float(v[nc + 1]), float(v[nc]), like.T)
+    st = state_ph(fluid, float(v[nc + 1]), float(v[nc]), like.state if like.fluid is fluid else like.T)
     return ctx.stream(x, n, st, fluid)
 
 

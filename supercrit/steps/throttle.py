@@ -17,7 +17,7 @@ def run(spec, inlets, ctx) -> StepResult:
         raise InputError(f"a throttle lowers the pressure: outlet {p_out / 1e5:.4g} bar is above the inlet "
                          f"{s_in.p / 1e5:.4g} bar", where(spec))
     h = s_in.h
-    out = state_ph(s_in.fluid, p_out, h, s_in.T)
+    out = state_ph(s_in.fluid, p_out, h, s_in.state)
     ps = np.linspace(s_in.p, p_out, N_SEGMENTS + 1)
     path = StepPath("main", "p", ps, sample_ph(s_in.fluid, ps, np.full_like(ps, h), s_in.state, out))
     return StepResult(spec.id, spec.kind, {"out": ctx.stream(s_in.x, s_in.n, out, s_in.fluid)}, (path,),

@@ -9,7 +9,7 @@ from typing import Mapping
 
 import numpy as np
 
-from ..errors import InputError, ModelRangeError
+from ..errors import InputError, ModelRangeError, SupercritError
 from .build import build_model, canonical_model_name
 from .components import Component, get_component
 from .ideal_gas import IdealGasParts
@@ -192,12 +192,18 @@ class Fluid:
                              f"(phase envelope)", what)
 
     # -- public API ---------------------------------------------------------------------
-    def state(self, T=None, p=None, rho=None, h=None, s=None, *, rho_mass=None, h_mass=None, s_mass=None) -> State:
+    def state(self, T=None, p=None, rho=None, h=None, s=None, *, rho_mass=None, h_mass=None, s_mass=None,
+              near=None) -> State:
         """The stable state from one pair of specifications (SI).
 
         Pairs: (T, p), (T, rho) or (T, rho_mass), (p, h) or (p, h_mass), (p, s) or (p, s_mass).
         Molar h [J mol-1], s [J mol-1 K-1]; mass-based with the ``_mass`` keywords.
         Arrays of equal shape give a batch (T, p and T, rho are vectorised).
+
+        ``near`` (one (p, h) or (p, s) state only): a neighbouring State of this fluid, or a
+        temperature [K], to start from - e.g. the previous point of a path. It changes the cost,
+        never the answer: the neighbour-started solution is kept only if it is the stable state,
+        otherwise the full flash decides.
 
         Raises
         ------
@@ -221,7 +227,12 @@ class Fluid:
             return self._state_Trho(T, rho)
         if given in ({"p", "h"}, {"p", "s"}):
             key = "h" if "h" in given else "s"
-            return self._state_p_prop(p, h if key == "h" else s, key)
+            target = h if key == "h" else s
+            if near is not None and np.ndim(p) == 0 and np.ndim(target) == 0:
+                st = self._state_p_prop_near(float(p), float(target), key, near)
+                if st is not None:
+                    return st
+            return self._state_p_prop(p, target, key)
         raise InputError(f"give exactly one pair of specifications: (T, p), (T, rho), (p, h) or (p, s); "
                          f"got {sorted(given) or 'none'}", "state")
 
@@ -282,6 +293,68 @@ class Fluid:
         codes = np.where(two, TWO_PHASE, codes)
         return State(self.model, self.ideal, self.M_i, T, rho, x, codes, q, np.where(two, rl, rho),
                      np.where(two, rv, rho), x, x)
+
+    def _state_p_prop_near(self, p: float, target: float, key: str, near):
+        """One (p, h) or (p, s) state by Newton in (T, rho) from a neighbour (solvers/flash_near.py),
+        kept only where it is certainly the stable state; None sends the caller to the full flash.
+
+        Checks: models without a two-phase region - always; pure fluids - above Tc (one root), else
+        the models' own stable-root choice at (T, p) (cubics) or the side of the ancillary vapour
+        pressure with a 0.5 % margin (Span-Wagner; none within 0.5 K of Tc, none at or below the
+        triple-point pressure where solid CO2 can form); mixtures - the PT flash at the solution is
+        single-phase with the same density.
+        """
+        from .solvers.density import _stable_density_scalar
+        from .solvers.flash_near import single_phase_p_prop
+
+        if not (np.isfinite(p) and p > 0 and np.isfinite(target)):
+            return None
+        if isinstance(near, State):
+            if np.ndim(near.T) != 0:
+                return None
+            T0 = float(near.T)
+            rho0 = float(near.rho_molar) if int(np.asarray(near.phase_)) in (GAS, LIQUID, SUPERCRITICAL) else None
+            if near.model is not self.model:
+                rho0 = None
+        else:
+            T0, rho0 = float(near), None
+        lo, hi = self.__dict__.get("_T_lims") or self._T_limits()
+        if not (lo <= T0 <= hi):
+            return None
+        comp = self._comps[0] if self.is_pure else None
+        if comp is not None and self.model_name == "span-wagner" and p <= comp.pt * 1.01:
+            return None  # solid CO2 possible: the full solver with the solid phases decides
+        try:
+            if rho0 is None:
+                rho0 = float(self._state_Tp(T0, p).rho_molar)
+            sol = single_phase_p_prop(self.model, self.ideal, self.M_i, self.x, p, target, key, T0, rho0, lo, hi)
+            if sol is None:
+                return None
+            T, rho = sol
+            if not self.is_pure and getattr(self.model, "has_two_phase", True):
+                from .mixture import mixture_state_Tp
+
+                st = mixture_state_Tp(self, np.asarray(T), np.asarray(p))
+                if int(np.asarray(st.phase_)) == TWO_PHASE or abs(float(st.rho_molar) - rho) > 1e-7 * rho:
+                    return None
+                return st
+            c = self._crit
+            if c is not None and T < c.T:
+                if hasattr(self.model, "density_roots_scalar"):
+                    r = _stable_density_scalar(self.model, T, p, tuple(self.x.tolist()))
+                    if r is None or abs(r - rho) > 1e-7 * rho:
+                        return None
+                else:
+                    guess_p = getattr(self.model, "saturation_pressure_guess", None)
+                    if guess_p is None or T > c.T - 0.5:
+                        return None
+                    ps = float(guess_p(T))
+                    if not ((rho > c.rho and p >= 1.005 * ps) or (rho < c.rho and p <= 0.995 * ps)):
+                        return None
+        except (SupercritError, ArithmeticError, ValueError):
+            return None
+        x = self.x
+        return State(self.model, self.ideal, self.M_i, np.asarray(T), np.asarray(rho), x, self._label(T, p, rho))
 
     def _state_p_prop(self, p, target, key):
         p, target = np.broadcast_arrays(np.asarray(p, dtype=float), np.asarray(target, dtype=float))

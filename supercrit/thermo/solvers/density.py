@@ -34,7 +34,7 @@ import math
 
 import numpy as np
 
-from ...errors import ConvergenceError, InputError
+from ...errors import ConvergenceError, InputError, SupercritError
 from ..properties import dp_drho, pressure, reduced_gibbs_residual
 from .result import SolverReport
 
@@ -83,9 +83,14 @@ def stable_density(model, T, p, x, rho_c=None):
     ConvergenceError
         If no stable root exists (only possible for models with a restricted range).
     """
-    if np.ndim(T) == 0 and np.ndim(p) == 0 and np.ndim(x) == 1 and hasattr(model, "density_roots_scalar") \
-            and hasattr(model, "alphar_derivs_scalar"):
-        rho = _stable_density_scalar(model, float(T), float(p), tuple(np.asarray(x, dtype=float).tolist()))
+    if np.ndim(T) == 0 and np.ndim(p) == 0 and np.ndim(x) == 1 and hasattr(model, "alphar_derivs_scalar"):
+        xt = tuple(np.asarray(x, dtype=float).tolist())
+        if hasattr(model, "density_roots_scalar"):
+            rho = _stable_density_scalar(model, float(T), float(p), xt)
+        elif hasattr(model, "saturation_pressure_guess") and len(xt) == 1:
+            rho = _branch_density_scalar(model, float(T), float(p), xt)
+        else:
+            rho = None
         if rho is not None:
             return np.asarray(rho)
     roots = density_roots(model, T, p, x, rho_c)
@@ -135,6 +140,90 @@ def _stable_density_scalar(model, T: float, p: float, x: tuple):
                 best, g_best = k, g
         return roots[best]
     except (ArithmeticError, ValueError):
+        return None
+
+
+def _branch_density_scalar(model, T: float, p: float, x: tuple):
+    """The stable density of one state of a pure fluid with ancillary saturation equations (reference
+    EOS), by the branch Newton iterations of the array path in Python floats; None where the array
+    path must decide (within 0.5 % of the ancillary vapour pressure or 0.5 K of Tc, no convergence).
+
+    Above Tc: the one root, Newton-bisection in ln rho split at the critical density (concave below,
+    started from the ideal gas; convex above, started from the dense end). Below Tc: p at least 0.5 %
+    above the ancillary vapour pressure - the liquid root, Newton from the ancillary liquid density;
+    at least 0.5 % below - the vapour root, Newton in (ln rho, ln p) from the ideal gas. On the chosen
+    side of the saturation line that root is the stable one.
+    """
+    crit = model.critical_point()
+    R = float(model.gas_constant)
+    RT = R * T
+    scal = model.alphar_derivs_scalar
+
+    def pd(r):
+        d = scal(T, r, x)
+        return r * RT * (1.0 + d[2]), RT * (1.0 + 2.0 * d[2] + d[5])
+
+    try:
+        if T < crit.T:
+            if T > crit.T - 0.5:
+                return None
+            ps = float(model.saturation_pressure_guess(T))
+            if p >= 1.005 * ps:  # liquid branch, convex: Newton from the saturated liquid
+                r = float(model.saturation_guess(T)[0])
+                rmax = float(model.max_density(np.asarray(x))[()])
+                for _ in range(60):
+                    pr, dp = pd(r)
+                    if not (dp > 0 and r > crit.rho):
+                        return None
+                    F = pr - p
+                    step = -F / dp
+                    if abs(F) <= 1e-13 * p or abs(step) <= 1e-14 * r:
+                        return r
+                    r = min(max(r + step, crit.rho), rmax)
+                return None
+            if p <= 0.995 * ps:  # vapour branch, concave: Newton in (ln rho, ln p) from the ideal gas
+                lr = math.log(p / RT)
+                lrc = math.log(crit.rho)
+                for _ in range(60):
+                    r = math.exp(lr)
+                    pr, dp = pd(r)
+                    if not (pr > 0 and dp > 0 and r < crit.rho):
+                        return None
+                    F = math.log(pr / p)
+                    step = -F * pr / (r * dp)
+                    if abs(F) <= 1e-13 or abs(step) <= 1e-14:
+                        return r
+                    lr = min(lr + step, lrc)
+                return None
+            return None
+        rmax = float(model.max_density(np.asarray(x))[()])
+        p_hi, _ = pd(rmax)
+        if not p_hi > p:
+            return None
+        p_c, _ = pd(crit.rho)
+        lrc = math.log(crit.rho)
+        if p > p_c:
+            lo, hi = lrc, math.log(rmax)
+            frac = min(max(math.log(p / p_c) / math.log(max(p_hi, p_c * (1 + 1e-12)) / p_c), 0.0), 1.0)
+            lx = lrc + (hi - lrc) * frac
+        else:
+            lo, hi = math.log(1e-3 * p / RT), lrc
+            lx = min(max(math.log(p / RT), lo), lrc)
+        for _ in range(200):
+            r = math.exp(lx)
+            pr, dp = pd(r)
+            F = math.log(max(pr, 1e-300) / p)
+            if F < 0:
+                lo = lx
+            elif F > 0:
+                hi = lx
+            step = -F * pr / (r * dp) if dp > 0 else float("nan")
+            if abs(F) <= 1e-13 or abs(step) <= 1e-14 or hi - lo <= 1e-14:
+                return r
+            new = lx + step
+            lx = new if (lo < new < hi and math.isfinite(new)) else 0.5 * (lo + hi)
+        return None
+    except (ArithmeticError, ValueError, SupercritError):
         return None
 
 

@@ -118,6 +118,13 @@ def flash_p_prop_batch(model, ideal, M, x1, p, target, key, crit, T_min, T_max, 
         lo[idx[vap]] = Ts[vap]
         iters = sat.report.iterations
     todo = np.nonzero(~two)[0]
+    if todo.size == 1 and n == 1 and hasattr(model, "alphar_derivs_scalar"):
+        got = _one_state_newton(model, ideal, M, x[0], float(p[0]), float(target[0]), key, int(branch[0]),
+                                float(lo[0]), float(hi[0]), crit, float(rl[0]), float(rv[0]),
+                                None if T_guess is None else float(np.ravel(T_guess)[0]))
+        if got is not None:
+            T[0], rho[0] = got
+            todo = todo[:0]
     if todo.size:
         Tt, rt, it = _solve_branch(model, ideal, M, x[todo], p[todo], target[todo], key, branch[todo], lo[todo],
                                    hi[todo], rho_c, None if T_guess is None else np.atleast_1d(T_guess)[todo],
@@ -126,6 +133,33 @@ def flash_p_prop_batch(model, ideal, M, x1, p, target, key, crit, T_min, T_max, 
         iters += it
     return dict(T=T, rho=rho, two=two, q=q, rho_l=np.where(two, rl, rho), rho_v=np.where(two, rv, rho),
                 report=SolverReport(True, iters, 0.0, "saturation + lever rule / Newton on T with cp"))
+
+
+def _one_state_newton(model, ideal, M, x, p, target, key, branch, lo, hi, crit, rho_l, rho_v, T_guess):
+    """One single-phase element by Newton in (T, rho) (solvers/flash_near.py), started on its branch:
+    from the saturated liquid or vapour at this pressure (their temperature is exact here, so the
+    answer is certainly stable if it stays on that side: liquid colder than Tsat and denser than
+    rho_c, vapour warmer and lighter), else from the (T, p) state at the warm start or at
+    max(Tc, 300 K) (at or above the critical pressure, and for models without a two-phase region,
+    there is one root). None where the batch path must decide."""
+    from .flash_near import single_phase_p_prop
+
+    try:
+        if branch == LIQUID_BRANCH:
+            sol = single_phase_p_prop(model, ideal, M, x, p, target, key, hi, rho_l, lo, hi)
+            ok = sol is not None and sol[0] <= hi and sol[1] > crit.rho
+        elif branch == VAPOR_BRANCH:
+            sol = single_phase_p_prop(model, ideal, M, x, p, target, key, lo, rho_v, lo, hi)
+            ok = sol is not None and sol[0] >= lo and sol[1] < crit.rho
+        else:
+            T0 = T_guess if T_guess is not None and lo <= T_guess <= hi else \
+                min(max(crit.T if crit is not None else 300.0, 300.0, lo), hi)
+            r0 = float(stable_density(model, T0, p, x, crit.rho if crit is not None else None))
+            sol = single_phase_p_prop(model, ideal, M, x, p, target, key, T0, r0, lo, hi)
+            ok = sol is not None
+    except (ArithmeticError, ValueError, ModelRangeError):
+        return None
+    return sol if ok else None
 
 
 def _solve_branch(model, ideal, M, x, p, target, key, branch, lo, hi, rho_c, T_guess, name, max_iter):

@@ -20,7 +20,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ...errors import ConvergenceError, InputError, ModelRangeError
+from ...errors import ConvergenceError, InputError, ModelRangeError, SupercritError
 from .result import SolverReport
 
 
@@ -228,6 +228,130 @@ def saturation_pressure(model, T, crit, x=(1.0,), *, tol=1e-13, max_iter=60, gue
     return Saturation(T.reshape(shape), p.reshape(shape), rl.reshape(shape), rv.reshape(shape), rep)
 
 
+def _saturation_T_one(model, p: float, crit, T_min, tol=1e-12, max_iter=30):
+    """One saturation temperature by Newton in (T, ln rho_L, ln rho_V) on ln p_L = ln p, ln p_V = ln p
+    and equal reduced Gibbs energy, in Python floats with the model's scalar alpha_r derivatives.
+
+    The Jacobian is analytic: d ln p/d ln rho = (1 + 2 A01 + A02)/(1 + A01),
+    d ln p/dT = (1 - A11/(1 + A01))/T, d(g/RT)/d ln rho = 1 + 2 A01 + A02, d(g/RT)/dT = -(A10 + A11)/T.
+    Starts from the model's ancillary equations (reference EOS) or the cached saturation table
+    (cubics). Returns None (the array path decides) within 0.05 K of Tc, below T_min, or without
+    convergence; the same tolerance as the array path (1e-12 on every residual).
+    """
+    import math
+
+    x = (1.0,)
+    scal = model.alphar_derivs_scalar
+    lo = T_min if T_min is not None else 0.5 * crit.T
+    try:
+        if hasattr(model, "saturation_pressure_guess"):
+            T = _invert_ancillary_one(model, p, lo, crit)
+            if not (lo <= T < crit.T - 0.05):
+                return None
+            rl, rv = (float(np.ravel(g)[0]) for g in model.saturation_guess(T))
+        else:
+            tab = _table(model, crit, x)
+            if tab is None or p < tab[1][0] or p > tab[1][-1]:
+                return None
+            lp = np.log(tab[1])
+            T = float(np.interp(math.log(p), lp, tab[0]))
+            rl = float(np.interp(math.log(p), lp, tab[2]))
+            rv = float(np.interp(math.log(p), lp, tab[3]))
+            if not (lo <= T < crit.T - 0.05):
+                return None
+        lrl, lrv = math.log(rl), math.log(rv)
+        R = float(model.gas_constant)
+        lnp = math.log(p)
+        for it in range(1, max_iter + 1):
+            rl, rv = math.exp(lrl), math.exp(lrv)
+            L = scal(T, rl, x)
+            V = scal(T, rv, x)
+            zl, zv = 1.0 + L[2], 1.0 + V[2]
+            if not (zl > 0 and zv > 0):
+                return None
+            lnRT = math.log(R * T)
+            F1 = lrl + lnRT + math.log(zl) - lnp
+            F2 = lrv + lnRT + math.log(zv) - lnp
+            F3 = (L[0] + L[2] + lrl) - (V[0] + V[2] + lrv)
+            kl, kv = 1.0 + 2.0 * L[2] + L[5], 1.0 + 2.0 * V[2] + V[5]
+            # rows: [dF/dT, dF/dlnrl, dF/dlnrv]
+            a = ((1.0 - L[4] / zl) / T, kl / zl, 0.0)
+            b = ((1.0 - V[4] / zv) / T, 0.0, kv / zv)
+            c = ((-(L[1] + L[4]) + (V[1] + V[4])) / T, kl, -kv)
+            det = (a[0] * (b[1] * c[2] - b[2] * c[1]) - a[1] * (b[0] * c[2] - b[2] * c[0])
+                   + a[2] * (b[0] * c[1] - b[1] * c[0]))
+            if det == 0.0 or not math.isfinite(det):
+                return None
+            r = (-F1, -F2, -F3)
+            dT = (r[0] * (b[1] * c[2] - b[2] * c[1]) - a[1] * (r[1] * c[2] - b[2] * r[2])
+                  + a[2] * (r[1] * c[1] - b[1] * r[2])) / det
+            d1 = (a[0] * (r[1] * c[2] - b[2] * r[2]) - r[0] * (b[0] * c[2] - b[2] * c[0])
+                  + a[2] * (b[0] * r[2] - r[1] * c[0])) / det
+            d2 = (a[0] * (b[1] * r[2] - r[1] * c[1]) - a[1] * (b[0] * r[2] - r[1] * c[0])
+                  + r[0] * (b[0] * c[1] - b[1] * c[0])) / det
+            if max(abs(F1), abs(F2), abs(F3)) < tol:
+                if not (lrl - lrv > 1e-3 and lo <= T < crit.T):
+                    return None
+                pv = rv * R * T * zv
+                return Saturation(T, pv, rl, rv, SolverReport(True, it, max(abs(F1), abs(F2), abs(F3)),
+                                                              "Newton in (T, ln rho_L, ln rho_V)"))
+            s = min(1.0, 5.0 / abs(dT) if dT else 1.0, 0.3 / max(abs(d1), abs(d2), 1e-300))
+            T += s * dT
+            lrl += s * d1
+            lrv += s * d2
+            if not (lo <= T < crit.T):
+                return None
+        return None
+    except (ArithmeticError, ValueError, SupercritError):
+        return None
+
+
+def _invert_ancillary_one(model, p: float, T_lo: float, crit) -> float:
+    """:func:`_invert_ancillary` for one pressure in Python floats, where the model publishes its
+    ancillary as ln(p/pc) = (Tc/T) sum a_i theta^t_i, theta = 1 - T/Tc (rows ``_anc_p``); Newton on T."""
+    import math
+
+    rows = getattr(model, "_anc_p", None)
+    if rows is None:
+        return float(_invert_ancillary(model, np.array([p]), np.array([T_lo]), crit)[0])
+    rows = [(float(a), float(t)) for a, t in rows]
+    Tc, lpc, lp = float(crit.T), math.log(model.pc), math.log(p)
+    T_lo = max(T_lo, 0.5 * Tc)
+    pl = float(model.saturation_pressure_guess(T_lo))
+    inv = 1.0 / T_lo + (lp - math.log(pl)) / (lpc - math.log(pl)) * (1.0 / Tc - 1.0 / T_lo)
+    T = min(max(1.0 / inv, T_lo), Tc - 1e-6)
+    for _ in range(30):
+        th = 1.0 - T / Tc
+        S = sum(a * th ** t for a, t in rows)
+        dS = sum(-a * t * th ** (t - 1.0) / Tc for a, t in rows)
+        f = lpc + Tc / T * S - lp
+        df = -Tc / (T * T) * S + Tc / T * dS
+        step = -f / df if df != 0 else 0.0
+        Tn = min(max(T + step, T_lo), Tc - 1e-6)
+        if abs(Tn - T) < 1e-10:
+            return Tn
+        T = Tn
+    return T
+
+
+def _invert_ancillary(model, p, T_lo, crit):
+    """T [K] where the model's ancillary vapour pressure equals p [Pa]: Newton on ln psat against 1/T
+    (nearly linear), from the straight line between T_lo and the critical point; 8 steps."""
+    lp = np.log(p)
+    T_lo = np.maximum(T_lo, 0.5 * crit.T)
+    p_lo = model.saturation_pressure_guess(T_lo)
+    inv = 1.0 / T_lo + (lp - np.log(p_lo)) / (np.log(crit.p) - np.log(p_lo)) * (1.0 / crit.T - 1.0 / T_lo)
+    for _ in range(8):
+        T = np.clip(1.0 / inv, T_lo, crit.T - 1e-6)
+        inv = 1.0 / T
+        e = 1e-7 * inv
+        f = np.log(model.saturation_pressure_guess(T)) - lp
+        f2 = np.log(model.saturation_pressure_guess(np.minimum(1.0 / (inv + e), crit.T))) - lp
+        slope = (f2 - f) / e
+        inv = inv - np.where(slope < 0, f / np.where(slope < 0, slope, -1.0), 0.0)
+    return 1.0 / inv
+
+
 def saturation_temperature(model, p, crit, x=(1.0,), *, T_min=None, tol=1e-12, max_iter=60) -> Saturation:
     """Saturation temperature and coexisting densities of a pure fluid at pressure(s) p.
 
@@ -239,10 +363,19 @@ def saturation_temperature(model, p, crit, x=(1.0,), *, T_min=None, tol=1e-12, m
     ModelRangeError
         At or above the model's critical pressure (no saturation state) or below the pressure at T_min.
     """
-    scalar = np.ndim(p) == 0
+    scalar = np.ndim(p) == 0 or np.size(p) == 1
+    shape1 = np.shape(p)
     p = np.atleast_1d(np.asarray(p, dtype=float))
     if np.any(~np.isfinite(p)) or np.any(p <= 0):
         raise InputError("pressure must be a finite positive absolute pressure", "p")
+    if scalar and hasattr(model, "alphar_derivs_scalar") and len(model.components) == 1 \
+            and getattr(model, "has_two_phase", True) and float(p[0]) < crit.p:
+        got = _saturation_T_one(model, float(p[0]), crit, T_min)
+        if got is not None:
+            if shape1 == ():
+                return got
+            return Saturation(*(np.full(shape1, v) for v in (got.T, got.p, got.rho_liq, got.rho_vap)), got.report)
+    scalar = shape1 == ()
     if not getattr(model, "has_two_phase", True):
         _no_saturation(model, np.array([0.0]), crit.T)
     if np.any(p >= crit.p):
@@ -260,7 +393,10 @@ def saturation_temperature(model, p, crit, x=(1.0,), *, T_min=None, tol=1e-12, m
             f"saturation for {'/'.join(model.components)} at p = {np.min(p):.4g} Pa: below the saturation "
             f"pressure {p_lo:.4g} Pa at the lowest temperature supported ({T_lo[0]:.2f} K).")
     tab = None if hasattr(model, "saturation_guess") else _table(model, crit, x)
-    if tab is not None and p_lo >= tab[1][0]:
+    if hasattr(model, "saturation_pressure_guess"):
+        # start: the model's published ancillary vapour-pressure equation, inverted by Newton in 1/T
+        T = np.clip(_invert_ancillary(model, p, T_lo, crit), T_lo, crit.T - 1e-6)
+    elif tab is not None and p_lo >= tab[1][0]:
         # start: ln p against 1/T interpolated in the cached table
         T = np.interp(np.log(p), np.log(tab[1]), tab[0])
     else:
@@ -294,6 +430,10 @@ def saturation_temperature(model, p, crit, x=(1.0,), *, T_min=None, tol=1e-12, m
             sat = saturation_pressure(model, T_new, crit, x, guess=(sat.rho_liq, sat.rho_vap))
         except ConvergenceError:
             sat = saturation_pressure(model, T_new, crit, x)
+        if not np.all(np.isfinite(sat.p)):
+            raise ConvergenceError(f"{model.name}: saturation temperature iteration produced no saturation state "
+                                   f"at T = {float(np.ravel(T_new)[np.argmin(np.isfinite(sat.p))]):.4f} K",
+                                   SolverReport(False, it, float("nan"), "Newton on T with Clapeyron slope"))
         T = T_new
         if stalled:  # the temperature no longer moves: round-off floor of ln psat
             f = np.log(sat.p / p)

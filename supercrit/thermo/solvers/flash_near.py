@@ -1,0 +1,123 @@
+"""(p, h) and (p, s) states started from a neighbouring state: Newton in (T, rho) on one phase.
+
+Path sampling and step outlets know a nearby state (the previous point of a path, a step's inlet).
+Starting there, the two equations p(T, rho) = p* and h(T, rho) = h* (or s = s*) are solved by
+Newton's method with the analytic Jacobian (fixed composition):
+
+    (dp/dT)_rho, (dp/drho)_T                 from the alpha_r derivatives (properties.py);
+    (dh/dT)_rho = cv + (dp/dT)_rho / rho      (dh/drho)_T = ((dp/drho)_T - T (dp/dT)_rho / rho) / rho;
+    (ds/dT)_rho = cv / T                      (ds/drho)_T = -(dp/dT)_rho / rho^2   (Maxwell relation).
+
+The answer is *a* single-phase state with the given p and h (or s); whether it is the stable state
+is for the caller to decide (the Fluid facade checks it against the saturation line, the root
+choice or the mixture flash, and otherwise runs the full flash). Each iteration costs one
+evaluation of the alpha_r derivatives, so a path of near neighbours costs a few evaluations a point.
+"""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from ..properties import all_properties
+
+
+def _props(model, ideal, M, T: float, rho: float, x):
+    pr = all_properties(model, ideal, M, T, rho, x)
+    return (float(pr["p"]), float(pr["h"]), float(pr["s"]), float(pr["cv"]), float(pr["dpdT"]),
+            float(pr["dpdrho"]))
+
+
+def single_phase_p_prop(model, ideal, M, x, p: float, target: float, key: str, T0: float, rho0: float,
+                        T_min: float, T_max: float, max_iter: int = 40):
+    """(T [K], rho [mol m-3]) of one phase with pressure p [Pa] and h [J mol-1] (key 'h') or
+    s [J mol-1 K-1] (key 's'), by Newton's method from (T0, rho0); None if it does not converge.
+
+    Converged when the last step changed T by at most 1e-11 T and rho by at most 1e-11 rho
+    (quadratic convergence: the residuals are then at round-off). Steps are limited to 30 K and
+    to 30 % of the density; the iteration gives up (None) on leaving [T_min, T_max], on a
+    mechanically unstable density ((dp/drho)_T <= 0) or after ``max_iter`` steps.
+    """
+    x = np.asarray(x, dtype=float)
+    T, rho = float(T0), float(rho0)
+    if not (T > 0 and rho > 0 and math.isfinite(T) and math.isfinite(rho)):
+        return None
+    is_h = key == "h"
+    for _ in range(max_iter):
+        try:
+            pr, h, s, cv, dpdT, dpdrho = _props(model, ideal, M, T, rho, x)
+        except (ArithmeticError, ValueError):
+            return None
+        if not (dpdrho > 0.0) or not math.isfinite(pr):
+            return None
+        if is_h:
+            f2 = h - target
+            a21, a22 = cv + dpdT / rho, (dpdrho - T * dpdT / rho) / rho
+        else:
+            f2 = s - target
+            a21, a22 = cv / T, -dpdT / (rho * rho)
+        f1 = pr - p
+        if abs(f1) <= 1e-14 * p and abs(f2) <= 1e-14 * (abs(target) + 10.0 * T):
+            return T, rho  # residuals at round-off already
+        a11, a12 = dpdT, dpdrho
+        det = a11 * a22 - a12 * a21
+        if det == 0.0 or not math.isfinite(det):
+            return None
+        dT = -(a22 * f1 - a12 * f2) / det
+        drho = -(-a21 * f1 + a11 * f2) / det
+        scale = 1.0
+        if abs(dT) > 30.0:
+            scale = 30.0 / abs(dT)
+        if abs(drho) > 0.3 * rho:
+            scale = min(scale, 0.3 * rho / abs(drho))
+        T += scale * dT
+        rho += scale * drho
+        if not (T_min <= T <= T_max) or rho <= 0.0:
+            return None
+        if scale == 1.0 and abs(dT) <= 1e-11 * T and abs(drho) <= 1e-11 * rho:
+            return T, rho
+    return None
+
+
+def isobar_walker(fluid, p: float, key: str):
+    """T -> property ``key`` [SI] along the isobar p [Pa] of a pure fluid above its critical temperature,
+    where the (T, p) state has one density root: Newton on p(rho) from the previous call's density (the
+    calls of a 1-D search along an isobar are near neighbours), the facade's full solve where that
+    Newton does not settle in 20 steps. Raises ModelRangeError below the critical temperature."""
+    from ...errors import ModelRangeError
+
+    c = fluid._crit
+    if c is None or not fluid.is_pure:
+        raise ModelRangeError("isobar_walker is for pure fluids with a critical point")
+    model, ideal, M, x = fluid.model, fluid.ideal, fluid.M_i, fluid.x
+    R = float(model.gas_constant)
+    scal = getattr(model, "alphar_derivs_scalar", None)
+    xt = tuple(x.tolist())
+    last = {}
+
+    def value(T: float) -> float:
+        T = float(T)
+        if T < c.T:
+            raise ModelRangeError(f"isobar_walker: T = {T:.4f} K is below the critical temperature {c.T:.4f} K")
+        rho = last.get("rho")
+        if rho is not None and scal is not None:
+            for _ in range(20):
+                d = scal(T, rho, xt)
+                pr = rho * R * T * (1.0 + d[2])
+                dp = R * T * (1.0 + 2.0 * d[2] + d[5])
+                if not dp > 0:
+                    rho = None
+                    break
+                step = (p - pr) / dp
+                step = max(min(step, 0.3 * rho), -0.3 * rho)
+                rho += step
+                if abs(step) <= 1e-13 * rho:
+                    break
+            else:
+                rho = None
+        if rho is None or scal is None:
+            rho = float(fluid.state(T=T, p=p).rho_molar)
+        last["rho"] = rho
+        return float(all_properties(model, ideal, M, T, rho, x)[key])
+
+    return value
