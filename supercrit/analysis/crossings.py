@@ -99,10 +99,12 @@ def _pseudo_critical_line(fluid):
         pc = fluid.critical_point().p
         u = np.linspace(np.log(1e-4), np.log(59.0), 36)
         ps = pc * (1.0 + np.exp(u))
-        Ts, hint = [], None
-        for pi in ps:
-            hint = _pseudo_critical_T(fluid, float(pi), hint)
-            Ts.append(hint)
+        Ts = []
+        for k, pi in enumerate(ps):
+            # start from the line extrapolated through the two previous pressures (linear in u)
+            hint = None if k == 0 else Ts[-1] if k == 1 else Ts[-1] + (Ts[-1] - Ts[-2]) * (u[k] - u[k - 1]) / (
+                u[k - 1] - u[k - 2])
+            Ts.append(_pseudo_critical_T(fluid, float(pi), hint))
         if len(_LINES) > 32:
             _LINES.clear()
         _LINES[key] = (PchipInterpolator(u, np.array(Ts)), pc)
@@ -124,22 +126,27 @@ def _pseudo_critical_T_solve(fluid, p: float, T_hint: float | None = None) -> fl
     if p <= c.p:
         raise ModelRangeError(f"no pseudo-critical temperature at p = {p / 1e5:.3f} bar: at or below the "
                               f"critical pressure {c.p / 1e5:.3f} bar")
-    if T_hint is not None:  # the neighbouring pressure's answer: scan 8 K around it first
-        T = np.linspace(max(c.T + 0.01, T_hint - 2.0), T_hint + 6.0, 17)
-        cp = fluid.state(T=T, p=np.full_like(T, p)).cp
-        i = int(np.argmax(cp))
-        if 0 < i < len(T) - 1:
-            return _refine_cp_max(fluid, p, T[i - 1], T[i + 1])
+    if T_hint is not None:  # a nearby answer: scan 13 points +-3 K (then +-12 K) around it along the isobar
+        from ..thermo.solvers.flash_near import isobar_walker
+
+        cp_of = isobar_walker(fluid, p, "cp")
+        for width in (3.0, 12.0):
+            T = np.linspace(max(c.T + 0.01, T_hint - width), max(c.T + 0.01, T_hint - width) + 2.0 * width, 13)
+            cp = [cp_of(t) for t in T]
+            i = int(np.argmax(cp))
+            if 0 < i < len(T) - 1:
+                return _refine_cp_max(fluid, p, T[i - 1], T[i + 1], cp_of)
     T = np.linspace(c.T + 0.01, c.T + 150.0, 151)
     cp = fluid.state(T=T, p=np.full_like(T, p)).cp
     i = int(np.argmax(cp))
     return _refine_cp_max(fluid, p, T[max(i - 1, 0)], T[min(i + 1, len(T) - 1)])
 
 
-def _refine_cp_max(fluid, p, lo, hi):
+def _refine_cp_max(fluid, p, lo, hi, cp=None):
     from ..thermo.solvers.flash_near import isobar_walker
 
-    cp = isobar_walker(fluid, p, "cp")  # the one root above Tc, each call started from the previous density
+    if cp is None:
+        cp = isobar_walker(fluid, p, "cp")  # the one root above Tc, each call started from the previous density
     res = minimize_scalar(lambda x: -cp(x), bounds=(lo, hi), method="bounded", options={"xatol": 1e-6})
     return float(res.x)
 
@@ -231,7 +238,13 @@ def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[f
         def g_pc(s):
             if s.p <= pc:
                 return np.nan
-            return s.T - _pseudo_critical_T(fluid, s.p)
+            hint = None
+            line = _LINES.get(_signature(fluid))
+            if line is not None:
+                v = np.log(max(float(s.p) / line[1] - 1.0, 1e-12))
+                if np.log(1e-4) <= v <= np.log(59.0):
+                    hint = float(line[0](v))
+            return s.T - _pseudo_critical_T(fluid, s.p, hint)
 
         funcs.append(("pseudo-critical", g_pc))
         if any(float(s.p) > pc for s in states) and len({round(float(s.p), 3) for s in states}) > 3:

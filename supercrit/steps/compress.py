@@ -8,7 +8,7 @@ stages the gas is cooled to ``intercool_T`` (if given). Power = n (h_out - h_in)
 
 The sampled path of a stage follows a constant-efficiency polytropic path. With an isentropic
 efficiency, the polytropic efficiency that joins the same end states is found (first guess from the
-ideal-gas relation, one correction by the ratio of enthalpy rises, second pass kept); its value is
+ideal-gas relation, one correction by the ratio of enthalpy rises of a coarse 4-step first pass, second pass kept); its value is
 reported in ``extras['polytropic_efficiency']`` and the path's last state is the outlet.
 References: ASME PTC 10-1997, polytropic head definition (from memory).
 """
@@ -89,12 +89,13 @@ def machine_stage(fluid, st1, p2: float, eta_s: float | None = None, eta_p: floa
     if not SAMPLE_PATHS.get():
         # a recycle is still iterating: the outlet above is exact; the path is sampled on the converged pass
         return out, StepPath(label, "p", np.array([float(st1.p), p2]), (st1, out)), guess, eta_s
-    ps, states = polytropic_path(fluid, st1, p2, guess, expand)
-    dh_path = float(states[-1].h) - h1
+    # first pass: only its enthalpy rise is used (for the correction), so 4 RK4 steps suffice
+    _, coarse = polytropic_path(fluid, st1, p2, guess, expand, n_steps=4)
+    dh_path = float(coarse[-1].h) - h1
     if dh_path != 0.0 and (h2 - h1) != 0.0:
         ratio = dh_path / (h2 - h1)
         guess = guess * ratio if not expand else guess / ratio
-        ps, states = polytropic_path(fluid, st1, p2, guess, expand)
+    ps, states = polytropic_path(fluid, st1, p2, guess, expand)
     states[-1] = out
     return out, StepPath(label, "p", ps, tuple(states)), guess, eta_s
 

@@ -101,6 +101,11 @@ def isobar_walker(fluid, p: float, key: str):
             raise ModelRangeError(f"isobar_walker: T = {T:.4f} K is below the critical temperature {c.T:.4f} K")
         rho = last.get("rho")
         if rho is not None and scal is not None:
+            # predictor along the isobar: drho = -(dp/dT)_rho / (dp/drho)_T dT, then Newton on p(rho)
+            rho = rho - last["slope"] * (T - last["T"])
+            if not rho > 0:
+                rho = last["rho"]
+            prev = float("inf")
             for _ in range(20):
                 d = scal(T, rho, xt)
                 pr = rho * R * T * (1.0 + d[2])
@@ -111,13 +116,16 @@ def isobar_walker(fluid, p: float, key: str):
                 step = (p - pr) / dp
                 step = max(min(step, 0.3 * rho), -0.3 * rho)
                 rho += step
-                if abs(step) <= 1e-13 * rho:
+                # quadratic convergence: a step below 1e-8 rho after one below 1e-4 rho leaves < 1e-15
+                if abs(step) <= 1e-13 * rho or (abs(step) <= 1e-8 * rho and prev <= 1e-4 * rho):
                     break
+                prev = abs(step)
             else:
                 rho = None
         if rho is None or scal is None:
             rho = float(fluid.state(T=T, p=p).rho_molar)
-        last["rho"] = rho
-        return float(all_properties(model, ideal, M, T, rho, x)[key])
+        pr = all_properties(model, ideal, M, T, rho, x)
+        last.update(rho=rho, T=T, slope=float(pr["dpdT"]) / float(pr["dpdrho"]))
+        return float(pr[key])
 
     return value
