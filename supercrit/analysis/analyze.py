@@ -419,7 +419,6 @@ _PERTURBED: dict = {}
 
 def _kij_checks(scenario, rr, fmt) -> list[Reason]:
     """Re-evaluate envelope-dependent margins with each published alternative k_ij; say when a verdict flips."""
-    from ..thermo.fluid import Fluid
     from ..thermo.kij import kij_source
 
     comps = tuple(scenario.fluid.components)
@@ -428,13 +427,14 @@ def _kij_checks(scenario, rr, fmt) -> list[Reason]:
     out = []
     model = scenario.fluid.model
 
-    def perturbed(comp, a, b, value):
-        # one perturbed Fluid (and so one envelope trace) per model, composition and k_ij change
-        key = (model, tuple(sorted((c, round(v, 14)) for c, v in comp.items())), a, b, float(value))
+    def perturbed(fluid, a, b, value):
+        # the stream's own fluid (its k_ij set, overrides and constants) with one pair changed; one perturbed
+        # Fluid, and so one envelope trace, per model, composition, k_ij table and change
+        key = (fluid.model_name, fluid.components, fluid.x.tobytes(), fluid.kij.tobytes(), a, b, float(value))
         if key not in _PERTURBED:
             if len(_PERTURBED) >= 64:
                 _PERTURBED.clear()
-            _PERTURBED[key] = Fluid(comp, model=model, kij={a: {b: float(value)}})
+            _PERTURBED[key] = fluid.with_kij({(a, b): float(value)})
         return _PERTURBED[key]
 
     for sid, res in rr.steps.items():
@@ -452,7 +452,7 @@ def _kij_checks(scenario, rr, fmt) -> list[Reason]:
                     continue
                 for set_name, value, _src in kv.alternatives:
                     try:
-                        f2 = perturbed({c: v for c, v in s.composition.items() if v > 0}, a, b, value)
+                        f2 = perturbed(s.fluid, a, b, value)
                         if res.kind == "compress":
                             Td = dew_temperature(f2, s.p)
                             if Td is None:

@@ -16,8 +16,7 @@ from typing import Mapping
 
 import numpy as np
 
-from ..errors import InputError, PropertyUndefinedError, SupercritError
-from ..thermo.constants import R_CODATA_2018
+from ..errors import InputError
 from ..thermo.fluid import Fluid
 from ..thermo.state import State
 
