@@ -84,8 +84,7 @@ class IdealGasParts:
         em1 = np.expm1(u)
         cp = self.c0 + np.sum(self.pe_n * u * u * (em1 + 1.0) / (em1 * em1), axis=-1)
         H = self.c0 * T[..., None] + np.sum(self.pe_n * self.pe_theta / em1, axis=-1)
-        # ln(1 - e^-u) = ln(e^u - 1) - u: one logarithm of the expm1 already at hand
-        S = self.c0 * np.log(T)[..., None] + np.sum(self.pe_n * (u / em1 + u - np.log(em1)), axis=-1)
+        S = self.c0 * np.log(T)[..., None] + np.sum(self.pe_n * (u / em1 - np.log(-np.expm1(-u))), axis=-1)
         if self._has_power:  # power terms (N2 only among the packaged components)
             Tb = T[..., None, None]
             tr = (self.pw_Tred / Tb) ** self.pw_t

@@ -91,7 +91,9 @@ def test_pure_fluid_limit_of_bubble_and_dew_point():
     for T in (230.0, 260.0, 290.0):
         ps = pure.saturation(T=T).p
         assert f.dew_point(T=T).p == pytest.approx(ps, rel=1e-8)
-        assert f.bubble_point(T=T).p == pytest.approx(ps, rel=5e-8)
+        # 1e-8 as the acceptance asks; the physical shift itself, eps (K_N2 - 1)/(Z_V - Z_L), is about
+        # 6e-9 at 230 K (test_mixture_speed_paths.py checks that term to 0.2 % of its size)
+        assert f.bubble_point(T=T).p == pytest.approx(ps, rel=1e-8)
 
 
 def test_pure_envelope_is_saturation_curve():

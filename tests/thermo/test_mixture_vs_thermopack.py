@@ -78,9 +78,13 @@ def test_bubble_and_dew_point_api_matches_thermopack(mix):
     for T in (220.0, 250.0, 270.0, 285.0, env.critical.T - 6.0):
         for kind, ref_fn in (("bubble", tp.bubble_pressure), ("dew", tp.dew_pressure)):
             try:
-                ref = ref_fn(T, f.x)[0]
+                ref, inc = ref_fn(T, f.x)[:2]
             except Exception:
                 continue  # thermopack 2.2.3's own solver failed at this point (it does near the critical point)
+            if np.max(np.abs(np.log(np.asarray(inc) / f.x))) < 1e-3:
+                # thermopack 2.2.3 returned the trivial solution (incipient phase = feed; seen for CO2/N2 at
+                # Tc - 6 K: 7.352 MPa with y = z to 5e-4 and Z_L = Z_V) - not a bubble or dew point
+                continue
             pt = (f.bubble_point if kind == "bubble" else f.dew_point)(T=T)
             assert pt.p == pytest.approx(ref, rel=1e-5), (name, kind, T)
             feed = pt.liquid if kind == "bubble" else pt.vapor

@@ -65,7 +65,7 @@ def density_roots(model, T, p, x, rho_c=None):
         roots = model.density_roots(T, p, x)
     else:
         roots = _scan_roots(model, T, p, x, rho_c)
-    if roots.shape[-1] > 1:
+    if roots.shape[-1] > 1 and not getattr(model, "roots_are_stable", False):
         ok = np.isfinite(roots)
         Tb = np.broadcast_to(np.asarray(T, dtype=float)[..., None], roots.shape)
         xb = np.broadcast_to(np.asarray(x, dtype=float)[..., None, :], roots.shape + (np.shape(x)[-1],))

@@ -2,9 +2,10 @@
 
 Unknowns X = (ln K_1..ln K_nc, ln T, ln p); equations ln K_i + ln phi_i(y) - ln phi_i(x) = 0,
 sum(y - x) = 0, plus one specification X_s = S. The trace starts on the dew branch (feed = vapour,
-incipient liquid x = z/K) at the lower temperature bound, follows the curve with a linear
-predictor from the sensitivities dX/dS, re-chooses the specified variable as the one changing
-fastest, adapts the step to the Newton iteration count, and passes the critical point where all
+incipient liquid x = z/K) at the lower temperature bound, follows the curve with a predictor from
+the sensitivities dX/dS (the tangent line, or on smooth stretches the cubic through the last two
+points and their tangents), re-chooses the specified variable as the one changing fastest, adapts
+the step to the Newton iteration count, and passes the critical point where all
 ln K change sign (the feed phase then is the liquid: bubble branch). The critical point is located
 by Hermite interpolation of (T, ln p) in the specified ln K at its sign change; cricondenbar and
 cricondentherm are refined by a bounded 1-D search on the curve.
@@ -14,22 +15,25 @@ Michelsen & Mollerup, Thermodynamic Models (2nd ed., 2007), ch. 12.
 
 Notes
 -----
-Every point satisfies the equations to max|F| < 1e-10. The trace stops at ``T_min`` (for CO2-bearing
+Every point satisfies the equations to max|F| < 1e-11 (Newton, analytic Jacobian; the last point
+of each solve is verified by a residual evaluation, and the sensitivities come with the last Newton
+elimination). The iterations run on Python floats (a handful of unknowns). The trace stops at ``T_min`` (for CO2-bearing
 mixtures the CO2 triple point 216.592 K, Span & Wagner 1996: solid CO2 forms below), or when
 p exceeds ``p_max``, or when the continuation fails after repeated step halving: an envelope that does
 not reach its critical point and come back down to ``T_min`` is reported as open, with the reason.
 """
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 
 import numpy as np
 from scipy.optimize import minimize_scalar
 
 from ...errors import ConvergenceError
-from .flash import sat_residual, solve_sat_point
+from .flash import _sat_lists, _solve_sat_lists, solve_sat_point
 from .result import SolverReport
-from .stability import wilson_K
+from .stability import solve_dense, wilson_K
 
 
 @dataclass(frozen=True)
@@ -72,12 +76,42 @@ def _labels(crossed):
     return ("liq", "vap") if crossed else ("vap", "liq")  # (feed root, incipient root)
 
 
+def _sign(v):
+    v = float(v)
+    return (v > 0) - (v < 0)  # np.sign, on a Python float
+
+
 def _sens(J, s):
-    n = J.shape[1]
-    A = np.vstack([J, np.eye(n)[s]])
-    rhs = np.zeros(n)
+    """Sensitivities dX/dX_s of the saturation system along the curve: J dX = 0 with dX_s = 1 (lists)."""
+    n = len(J[0])
+    es = [0.0] * n
+    es[s] = 1.0
+    rhs = [0.0] * n
     rhs[-1] = 1.0
-    return np.linalg.solve(A, rhs)
+    return solve_dense(J + [es], rhs)
+
+
+PREDICT_CUBIC_MAX = 0.01  # [-] largest |cubic - linear| prediction for which the cubic is used (speed setting)
+
+
+def _predict(X, dX, X0, dX0, s, ds):
+    """Predicted X at X_s + ds dX_s: the tangent line, replaced by the cubic Hermite in X_s through the
+    last two points and their tangents (Michelsen 1980) where the two agree to ``PREDICT_CUBIC_MAX``
+    (a smooth stretch of the curve: the cubic then saves Newton iterations; near folds and turns
+    the tangent line is kept)."""
+    lin = [a + ds * b for a, b in zip(X, dX)]
+    if X0 is None or dX0[s] == 0.0 or dX[s] == 0.0 or X[s] == X0[s]:
+        return lin
+    h = X[s] - X0[s]
+    t = 1.0 + ds * dX[s] / h
+    t2, t3 = t * t, t * t * t
+    h00, h10, h01, h11 = 2 * t3 - 3 * t2 + 1, t3 - 2 * t2 + t, -2 * t3 + 3 * t2, t3 - t2
+    c0, c1 = h10 * h / dX0[s], h11 * h / dX[s]
+    cub = [h00 * a0 + c0 * d0 + h01 * a1 + c1 * d1 for a0, d0, a1, d1 in zip(X0, dX0, X, dX)]
+    cub[s] = lin[s]  # the specified value itself, exactly
+    if max([abs(a - b) for a, b in zip(cub, lin)]) > PREDICT_CUBIC_MAX:
+        return lin
+    return cub
 
 
 def trace_envelope(model, z, Tc, pc, omega, T_min, p_max=1.0e8, max_points=600, T_start=None):
@@ -105,12 +139,13 @@ def trace_envelope(model, z, Tc, pc, omega, T_min, p_max=1.0e8, max_points=600, 
         No dew point could be found at the starting temperature.
     """
     z = np.asarray(z, dtype=float)
+    zl = z.tolist()
     nc = len(z)
     iT, iP = nc, nc + 1
     T0 = float(T_start if T_start is not None else T_min)
-    X = _start_dew(model, z, T0, Tc, pc, omega)
-    ref = int(np.argmax(np.abs(X[:nc])))
-    sign0 = np.sign(X[ref])
+    X = _start_dew(model, z, T0, Tc, pc, omega).tolist()
+    ref = max(range(nc), key=lambda i: abs(X[i]))
+    sign0 = _sign(X[ref])
     pts, branch = [], []
     crossed = False
     crit = None
@@ -120,44 +155,48 @@ def trace_envelope(model, z, Tc, pc, omega, T_min, p_max=1.0e8, max_points=600, 
     closed, reason = False, ""
     total_it = 0
     fr, wr = _labels(False)
-    F, J, x, y, rx, ry = sat_residual(model, z, X, False, fr, wr)
-    pts.append((X.copy(), ry, rx))
+    F, J, x, y, rx, ry = _sat_lists(model, zl, X, False, fr, wr)
+    pts.append((X[:], ry, rx))
     branch.append("dew")
     dX = _sens(J, s)
+    prevX = prevdX = None
+    n = nc + 2
     while len(pts) < max_points:
         # choose the specification: the variable changing fastest along the curve
-        s_new = int(np.argmax(np.abs(dX)))
+        s_new = max(range(n), key=lambda i: abs(dX[i]))
         if s_new != s:
-            dX = dX / dX[s_new]
+            d = dX[s_new]
+            dX = [v / d for v in dX]
             s = s_new
         # direction: keep moving forward along the curve
-        if not pts or len(pts) == 1:
+        if len(pts) == 1:
             direction = 1.0 if dX[iP] > 0 else -1.0  # start by raising the pressure
         else:
             prev = pts[-2][0]
-            direction = 1.0 if float(dX @ (X - prev)) > 0 else -1.0
+            direction = 1.0 if sum([a * (b - c) for a, b, c in zip(dX, X, prev)]) > 0 else -1.0
         step = abs(dS)
         # cap the change of every variable (|d ln K|, |d ln T|, |d ln p|)
-        cap = 0.08 / max(float(np.max(np.abs(dX))), 1e-12)
+        cap = 0.08 / max(max([abs(v) for v in dX]), 1e-12)
         step = min(step, cap)
         # jump the critical point: mirror ln K_s when the step would land near zero
         if s < nc and not crossed:
             Xs_pred = X[s] + direction * step * dX[s]
-            if np.sign(Xs_pred) != np.sign(X[s]) or abs(Xs_pred) < 0.3 * abs(X[s]):
+            if _sign(Xs_pred) != _sign(X[s]) or abs(Xs_pred) < 0.3 * abs(X[s]):
                 step = abs(2.0 * X[s] / dX[s])
         ok = False
         for _ in range(12):
-            Xp = X + direction * step * dX
-            will_cross = np.sign(Xp[ref]) != sign0
+            ds = direction * step
+            Xp = _predict(X, dX, prevX, prevdX, s, ds)
+            will_cross = _sign(Xp[ref]) != sign0
             fr, wr = _labels(will_cross)
             try:
-                Xn, xx, yy, rxx, ryy, it = solve_sat_point(model, z, Xp, s, Xp[s], False, fr, wr, tol=1e-11,
-                                                           max_iter=12, max_step=1.0)
+                Xn, xx, yy, rxx, ryy, it, dXn = _solve_sat_lists(model, zl, Xp, s, Xp[s], False, fr, wr, tol=1e-11,
+                                                                 max_iter=12, max_step=1.0, sens=True)
             except ConvergenceError:
                 step *= 0.5
                 continue
             # reject a jump back onto the trivial solution or across the wrong branch
-            if float(np.max(np.abs(Xn[:nc]))) < 1e-6 or (np.sign(Xn[ref]) != np.sign(Xp[ref])):
+            if max([abs(v) for v in Xn[:nc]]) < 1e-6 or (_sign(Xn[ref]) != _sign(Xp[ref])):
                 step *= 0.5
                 continue
             if abs(Xn[iT] - X[iT]) > 0.3 or abs(Xn[iP] - X[iP]) > 0.5:
@@ -166,25 +205,31 @@ def trace_envelope(model, z, Tc, pc, omega, T_min, p_max=1.0e8, max_points=600, 
             ok = True
             break
         if not ok:
-            reason = (f"continuation failed after T = {np.exp(X[iT]):.3f} K, p = {np.exp(X[iP]) / 1e5:.3f} bar "
+            reason = (f"continuation failed after T = {math.exp(X[iT]):.3f} K, p = {math.exp(X[iP]) / 1e5:.3f} bar "
                       f"({'bubble' if crossed else 'dew'} branch): the envelope is reported open there")
             break
         total_it += it
-        F, J, xx, yy, rxx, ryy = sat_residual(model, z, Xn, False, fr, wr)
-        dXn = _sens(J, s)
-        if np.sign(dXn @ (Xn - X)) < 0:
-            dXn = -dXn
+        if dXn is None:  # the last Newton step moved X after its Jacobian: evaluate at Xn
+            F, Jn, xx, yy, rxx, ryy = _sat_lists(model, zl, Xn, False, fr, wr)
+            dXn = _sens(Jn, s)
+        if sum([a * (b - c) for a, b, c in zip(dXn, Xn, X)]) < 0:
+            dXn = [-v for v in dXn]
         if (not crossed) and will_cross:
-            crit = _hermite_critical(X, dX, Xn, dXn, ref, iT, iP)
+            # tangents at both points evaluated there (the step's tangents may come from the Newton
+            # iterate before a checked point), so that the estimate depends on the two points alone
+            fr0, wr0 = _labels(False)
+            t0 = _sens(_sat_lists(model, zl, X, False, fr0, wr0)[1], s)
+            t1 = _sens(_sat_lists(model, zl, Xn, False, fr, wr)[1], s)
+            crit = _hermite_critical(X, t0, Xn, t1, ref, iT, iP)
             crossed = True
             crit_index = len(pts)
-        Tn, Pn = np.exp(Xn[iT]), np.exp(Xn[iP])
+        Tn, Pn = math.exp(Xn[iT]), math.exp(Xn[iP])
         if Tn < T_min:
             # land exactly on the lower temperature bound and stop
             try:
                 Xe, xx, yy, rxx, ryy, _ = solve_sat_point(model, z, Xn, iT, np.log(T_min), False, fr, wr,
                                                           max_iter=20)
-                pts.append((Xe, ryy, rxx))
+                pts.append((Xe.tolist(), ryy, rxx))
                 branch.append("bubble" if crossed else "dew")
             except ConvergenceError:
                 pass
@@ -200,10 +245,11 @@ def trace_envelope(model, z, Tc, pc, omega, T_min, p_max=1.0e8, max_points=600, 
                       f"T = {Tn:.2f} K without closing: open envelope (no vapour-liquid critical point "
                       f"on this branch; typical of CO2 with H2, He or water)")
             break
-        pts.append((Xn.copy(), ryy, rxx))
+        pts.append((Xn, ryy, rxx))
         branch.append("bubble" if crossed else "dew")
         # step control: aim at 3-4 Newton iterations
         dS = step * (1.5 if it <= 3 else (0.7 if it >= 6 else 1.0))
+        prevX, prevdX = X, dX
         X, dX = Xn, dXn
     else:
         reason = f"stopped after {max_points} points without reaching the lower temperature bound"
@@ -274,20 +320,21 @@ def _refine_extremum(model, z, pts, branch, i_max, i_par, crit_index):
     sign0 = np.sign(Xs[0, ref])
     seg = Xs[k - 1:k + 2]
     order = np.argsort(seg[:, i_par])
-    seg = seg[order]
-    lo, hi = seg[0, i_par], seg[-1, i_par]
+    seg = seg[order].tolist()
+    lo, hi = seg[0][i_par], seg[-1][i_par]
     if hi - lo < 1e-14:
         return EnvelopePoint(float(np.exp(Xs[k, nc])), float(np.exp(Xs[k, nc + 1])))
+    zl = z.tolist()
     found = {}
 
     def neg(val):
-        j = 0 if val <= seg[1, i_par] else 1
+        j = 0 if val <= seg[1][i_par] else 1
         a, b = seg[j], seg[j + 1]
         t = (val - a[i_par]) / (b[i_par] - a[i_par]) if b[i_par] != a[i_par] else 0.0
-        Xg = a + t * (b - a)
+        Xg = [u + t * (v - u) for u, v in zip(a, b)]
         fr, wr = _labels(np.sign(Xg[ref]) != sign0)
         try:
-            Xn, *_ = solve_sat_point(model, z, Xg, i_par, val, False, fr, wr, max_iter=30, max_step=0.5)
+            Xn, *_ = _solve_sat_lists(model, zl, Xg, i_par, float(val), False, fr, wr, max_iter=30, max_step=0.5)
         except ConvergenceError:
             return -Xs[k, i_max] + 1.0
         found[float(val)] = Xn

@@ -1,9 +1,10 @@
 """Mixture flashes for cubic models: (T, p), (p, h), (p, s) and bubble/dew points.
 
-PT flash: stability test first (:mod:`.stability`), then the phase split by successive substitution
-on ln K with Rachford-Rice inside and dominant-eigenvalue (GDEM) acceleration every fifth step,
-switching to Newton on the Gibbs energy in the vapour mole numbers when substitution is slow
-(near the critical point). Every two-phase answer passes the guards before it is returned:
+PT flash: stability test first (:mod:`.stability`; it stops at the first trial phase that proves
+instability), then the phase split: three steps of successive substitution on ln K with Rachford-Rice
+inside, then Newton on the Gibbs energy in the vapour mole numbers; if that Newton solve does not
+converge monotonically, substitution goes on (dominant-eigenvalue (GDEM) acceleration every fifth
+step) and Newton takes over after twelve steps (near the critical point). Every two-phase answer passes the guards before it is returned:
 |ln K| not all near 0, distinct phase densities, material balance, Gibbs energy below the single
 phase; a split that fails them is reported as the single phase. A second liquid (the liquid
 itself unstable) raises ConvergenceError naming it: three-phase equilibrium is not computed.
@@ -22,13 +23,15 @@ be reported as single phase (the two phases are then indistinguishable to the gu
 """
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
+from operator import mul as _mul
 
 import numpy as np
 
 from ...errors import ConvergenceError
 from .result import SolverReport
-from .stability import stability_test, wilson_K
+from .stability import _stability_lists, solve_dense, solve_dense_many
 
 LNK_MIN = 1e-7  # [-] guard: a split with max|ln K| below this is the trivial solution (common practice)
 RHO_RATIO_MIN = 1e-7  # [-] guard: |rho_L/rho_V - 1| must exceed this (common practice)
@@ -72,32 +75,36 @@ def rachford_rice(z, K, tol=1e-14, max_iter=60, beta0=0.5):
     Returns beta [-] (may lie outside [0, 1]: negative flash). Safeguarded Newton with bisection.
     Raises ValueError if all K lie on one side of 1 (no root).
     """
-    # Python floats: a handful of components, where numpy's per-call overhead would dominate
-    km1 = [k - 1.0 for k in np.asarray(K, dtype=float).tolist()]
-    zl = np.asarray(z, dtype=float).tolist()
-    n = len(zl)
-    kmax, kmin = float(np.max(K)), float(np.min(K))
+    return _rachford_rice_lists(np.asarray(z, dtype=float).tolist(), np.asarray(K, dtype=float).tolist(),
+                                tol, max_iter, beta0)
+
+
+def _rachford_rice_lists(zl, Kl, tol=1e-14, max_iter=60, beta0=0.5):
+    """:func:`rachford_rice` on lists of Python floats (a handful of components: no numpy overhead).
+
+    Written as sum_i z_i / (c_i + beta) with c_i = 1/(K_i - 1) (components with K_i = 1 add nothing)."""
+    kmax, kmin = max(Kl), min(Kl)
     if not (kmax > 1.0 > kmin):
         raise ValueError("Rachford-Rice has no root: all K on one side of 1")
+    zc = [(zi, 1.0 / (k - 1.0)) for zi, k in zip(zl, Kl) if k != 1.0]
     lo, hi = 1.0 / (1.0 - kmax), 1.0 / (1.0 - kmin)
     b = beta0
     if not lo < b < hi:
         b = 0.5 * (lo + hi)
     for _ in range(max_iter):
         f = df = 0.0
-        for i in range(n):
-            den = 1.0 + b * km1[i]
-            t = zl[i] * km1[i] / den
+        for zi, ci in zc:
+            r = 1.0 / (ci + b)
+            t = zi * r
             f += t
-            df += t * km1[i] / den
+            df += t * r
         if f == 0.0:
             return b
-        df = -df
         if f > 0.0:
             lo = b
         else:
             hi = b
-        bn = b - f / df
+        bn = b + f / df
         if not lo < bn < hi:
             bn = 0.5 * (lo + hi)
         if abs(bn - b) <= tol * max(1.0, abs(b)):
@@ -106,93 +113,153 @@ def rachford_rice(z, K, tol=1e-14, max_iter=60, beta0=0.5):
     return b
 
 
-def _gibbs_split(kern, p, beta, x, y, lpx, lpy):
-    with np.errstate(divide="ignore", invalid="ignore"):
-        gl = np.where(x > 0, x * (np.log(x) + lpx), 0.0).sum()
-        gv = np.where(y > 0, y * (np.log(y) + lpy), 0.0).sum()
-    return (1.0 - beta) * gl + beta * gv
+def _gibbs(x, lp):
+    """sum_i x_i (ln x_i + ln phi_i) over x_i > 0 [-] (lists)."""
+    return sum([xi * (math.log(xi) + li) for xi, li in zip(x, lp) if xi > 0])
+
+
+NEWTON_AFTER = 3  # [-] substitution steps before the split tries Newton (a speed setting; SS continues if Newton fails)
 
 
 def _split(kern, z, p, lnK, max_ss=12, max_newton=40):
-    """Phase split from ln K; returns (beta, x, y, lnK, lpx, lpy, Zx, Zy, iterations, method) or None."""
-    present = z > 0
-    it = 0
+    """Phase split from ln K (lists); returns (beta, x, y, lnK, lpx, lpy, Zx, Zy, iterations, method) or None.
+
+    Successive substitution with GDEM every fifth step; after ``NEWTON_AFTER`` steps a Newton solve is
+    tried from the current K (it must converge monotonically, away from the trivial solution), and if it
+    does not, substitution continues to ``max_ss`` steps and Newton takes over from there.
+    """
+    exp = math.exp
+    n = len(z)
+    idx = [i for i in range(n) if z[i] > 0]
+    zp = [z[i] for i in idx]
+    ln_phi = kern.ln_phi_list
     hist = []
     method = "SS"
     beta = 0.5
     for it in range(1, max_ss + 1):
-        K = np.exp(lnK)
+        K = [exp(v) for v in lnK]
         try:
-            beta = rachford_rice(z[present], K[present], beta0=beta)
+            beta = _rachford_rice_lists(zp, [K[i] for i in idx], beta0=beta)
         except ValueError:
             return None
-        x = z / (1.0 + beta * (K - 1.0))
-        y = K * x
-        xs, ys = x / x.sum(), y / y.sum()
-        lpx, Zx, _ = kern.ln_phi(xs, p, "stable")
-        lpy, Zy, _ = kern.ln_phi(ys, p, "stable")
-        new = np.where(present, lpx - lpy, 0.0)
-        dl = new - lnK
+        x = [zi / (1.0 + beta * (Ki - 1.0)) for zi, Ki in zip(z, K)]
+        y = [Ki * xi for Ki, xi in zip(K, x)]
+        Sx, Sy = sum(x), sum(y)
+        xs, ys = [v / Sx for v in x], [v / Sy for v in y]
+        lpx, Zx, _ = ln_phi(xs, p, "stable")
+        lpy, Zy, _ = ln_phi(ys, p, "stable")
+        new = [(a - b) if zi > 0 else 0.0 for a, b, zi in zip(lpx, lpy, z)]
+        dl = [a - b for a, b in zip(new, lnK)]
         lnK = new
-        err = float(np.max(np.abs(dl)))
+        err = max([abs(v) for v in dl])
         if err < 1e-12:
             return beta, xs, ys, lnK, lpx, lpy, Zx, Zy, it, method
-        if float(np.max(np.abs(lnK))) < 1e-5:
+        if max([abs(v) for v in lnK]) < 1e-5:
             return None  # heading to the trivial solution
         hist.append(dl)
         if len(hist) >= 3 and it % 5 == 0:  # GDEM / dominant eigenvalue extrapolation
             d1, d0 = hist[-1], hist[-2]
-            lam = float(d1 @ d0) / float(d0 @ d0)
+            lam = sum(map(_mul, d1, d0)) / sum(map(_mul, d0, d0))
             if 0.0 < lam < 0.99:
-                lnK = lnK + d1 * lam / (1.0 - lam)
+                f = lam / (1.0 - lam)
+                lnK = [a + b * f for a, b in zip(lnK, d1)]
                 method = "SS+GDEM"
-    # Newton on the Gibbs energy in vapour mole numbers v (liquid l = z - v)
-    method += "+Newton"
-    K = np.exp(lnK)
+        if it == NEWTON_AFTER:
+            out = _newton_split(kern, z, p, lnK, idx, 10, it, method + "+Newton", strict=True, beta0=beta)
+            if out is not None:
+                return out
+    return _newton_split(kern, z, p, lnK, idx, max_newton, max_ss, method + "+Newton", strict=False)
+
+
+def _newton_split(kern, z, p, lnK, idx, max_newton, it, method, strict, beta0=0.5):
+    """Newton on the Gibbs energy in the vapour mole numbers v (liquid l = z - v), from ln K (lists).
+
+    Hessian H_ij = (n^V dln phi^V_i/dn_j - 1)/V + (n^L dln phi^L_i/dn_j - 1)/L + delta_ij z_i/(v_i l_i),
+    assembled in one pass from the kernel's factored derivatives. ``strict``: give up (None) as soon
+    as the residual grows or the phases approach each other (max |ln K| < 1e-5), so that the caller
+    can go on with substitution. Once the residual is below 1e-6 the next point is first checked with
+    ln phi alone (the step from there is expected to land within 1e-12)."""
+    exp, log = math.exp, math.log
+    K = [exp(v) for v in lnK]
+    zp = [z[i] for i in idx]
     try:
-        beta = rachford_rice(z[present], K[present])
+        beta = _rachford_rice_lists(zp, [K[i] for i in idx], beta0=beta0)
     except ValueError:
         return None
-    x = z / (1.0 + beta * (K - 1.0))
-    v = beta * K * x
-    v = np.where(present, v, 0.0)
-    idx = np.nonzero(present)[0]
-    for k in range(max_newton):
+    v = [beta * Ki * zi / (1.0 + beta * (Ki - 1.0)) if zi > 0 else 0.0 for zi, Ki in zip(z, K)]
+    if not strict and max([abs(q) for q in lnK]) < 1e-7:
+        return None
+    parts, ln_phi = kern.dn_parts, kern.ln_phi_list
+    small = kern._lists is not None  # factored derivatives (few components), else full matrices
+    full = len(idx) == len(z)
+    pick = (lambda a: a) if full else (lambda a: [a[i] for i in idx])
+    err_old = math.inf
+    cheap = False
+    m = len(idx)
+    for _ in range(max_newton):
         it += 1
-        l = z - v
-        V, L = v.sum(), l.sum()
-        if not (V > 0 and L > 0) or np.any(v[idx] <= 0) or np.any(l[idx] <= 0):
+        l = [zi - vi for zi, vi in zip(z, v)]
+        V, L = sum(v), sum(l)
+        if not (V > 0 and L > 0) or any(v[i] <= 0 or l[i] <= 0 for i in idx):
             return None
-        y, x = v / V, l / L
-        lpy, dny, _, _, _ = kern.ln_phi_and_derivs(y, p, "stable")
-        lpx, dnx, _, _, _ = kern.ln_phi_and_derivs(x, p, "stable")
-        g = (np.log(y[idx]) + lpy[idx]) - (np.log(x[idx]) + lpx[idx])
-        err = float(np.max(np.abs(g)))
+        y, x = [q / V for q in v], [q / L for q in l]
+        if cheap:
+            lpy, Zy, _ = ln_phi(y, p, "stable")
+            lpx, Zx, _ = ln_phi(x, p, "stable")
+            g = [(log(y[i]) + lpy[i]) - (log(x[i]) + lpx[i]) for i in idx]
+            if max([abs(q) for q in g]) < 1e-12:
+                return _split_out(z, V, x, y, lpx, lpy, Zx, Zy, it, method)
+        if small:
+            lpy, Vy, b, uy, wy, cy, aij, Py, qy, _, _ = parts(y, p, "stable")
+            lpx, Vx, _, ux, wx, cx, _, Px, qx, _, _ = parts(x, p, "stable")
+        else:
+            lpy, dny, _, _, Vy = kern.derivs_list(y, p, "stable", False)
+            lpx, dnx, _, _, Vx = kern.derivs_list(x, p, "stable", False)
+        g = [(log(y[i]) + lpy[i]) - (log(x[i]) + lpx[i]) for i in idx]
+        err = max([abs(q) for q in g])
         if err < 1e-12:
-            beta = V
-            Zx = kern.ln_phi(x, p, "stable")[1]
-            Zy = kern.ln_phi(y, p, "stable")[1]
-            return beta, x, y, np.where(present, np.log(np.where(present, y / np.where(x > 0, x, 1), 1.0)), 0.0), \
-                lpx, lpy, Zx, Zy, it, method
-        zi = z[idx]
-        H = (dny[np.ix_(idx, idx)] - 1.0) / V + (dnx[np.ix_(idx, idx)] - 1.0) / L \
-            + np.diag(zi / (v[idx] * l[idx]))
+            RT = kern.RT
+            return _split_out(z, V, x, y, lpx, lpy, Vx * p / RT, Vy * p / RT, it, method)
+        if strict and (err > err_old or max([abs(log(y[i] / x[i])) for i in idx]) < 1e-5):
+            return None
+        err_old = err
+        iV, iL = 1.0 / V, 1.0 / L
+        if small:
+            U = [a * iV + c * iL for a, c in zip(uy, ux)]
+            W = [a * iV + c * iL for a, c in zip(wy, wx)]
+            Qy = [a * iV for a in qy]
+            Qx = [a * iL for a in qx]
+            cc = cy * iV + cx * iL
+            if not full:
+                b, U, W, Py, Px, Qy, Qx = (pick(a) for a in (b, U, W, Py, Px, Qy, Qx))
+                aij = [pick(aij[i]) for i in idx]
+            H = [[bi * Uj + bj * Wi + cc * aij_ + Pyi * Qyj + Pxi * Qxj
+                  for Uj, bj, aij_, Qyj, Qxj in zip(U, b, row, Qy, Qx)]
+                 for bi, Wi, Pyi, Pxi, row in zip(b, W, Py, Px, aij)]
+        else:
+            H = [[(dny[i][j] - 1.0) * iV + (dnx[i][j] - 1.0) * iL for j in idx] for i in idx]
+        for a, i in enumerate(idx):
+            H[a][a] += z[i] / (v[i] * l[i])
         try:
-            dv = np.linalg.solve(H, -g)
-        except np.linalg.LinAlgError:
+            dv = solve_dense(H, [-q for q in g])
+        except ZeroDivisionError:
             return None
         # keep 0 < v < z
         s = 1.0
         for _ in range(60):
-            vn = v[idx] + s * dv
-            if np.all(vn > 0) and np.all(vn < zi):
+            if all(0.0 < v[i] + s * dv[a] < z[i] for a, i in enumerate(idx)):
                 break
             s *= 0.5
-        v = v.copy()
-        v[idx] = v[idx] + s * dv
-        if float(np.max(np.abs(lnK))) < 1e-7:
-            return None
+        v = v[:]
+        for a in range(m):
+            v[idx[a]] += s * dv[a]
+        cheap = err < 1e-6 and s == 1.0
     return None
+
+
+def _split_out(z, V, x, y, lpx, lpy, Zx, Zy, it, method):
+    lnK = [math.log(yi / (xi if xi > 0 else 1.0)) if zi > 0 else 0.0 for zi, xi, yi in zip(z, x, y)]
+    return V, x, y, lnK, lpx, lpy, Zx, Zy, it, method
 
 
 def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liquid=True):
@@ -209,6 +276,8 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
         Component constants for Wilson K-values [K], [Pa], [-].
     K0 : ndarray (nc,), optional
         K-values of a neighbouring solution (warm start); the stability test is still made.
+    kern : CubicPhaseKernel, optional
+        The model's phase kernel at T (default ``model.phase_kernel(T)``).
     check_second_liquid : bool
         Test the liquid of a split for a second liquid phase (ConvergenceError if found).
 
@@ -223,54 +292,75 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
     """
     T, p = float(T), float(p)
     z = np.asarray(z, dtype=float)
+    zl = z.tolist()
+    nc = len(zl)
     kern = kern or model.phase_kernel(T)
-    lpz, Zz, gz = kern.ln_phi(z, p, "stable")
-    Kw = wilson_K(T, p, Tc, pc, omega)
-    extra = ()
-    if K0 is not None and np.all(np.isfinite(K0)) and np.max(np.abs(np.log(K0))) > 1e-5:
-        extra = (z * K0, z / K0)
+    lpz, Zz, gz = kern.ln_phi_list(zl, p, "stable")
+    Tcl = np.asarray(Tc, dtype=float).tolist()
+    Kw = [pci / p * math.exp(5.373 * (1.0 + wi) * (1.0 - Tci / T))  # wilson_K, on Python floats
+          for Tci, pci, wi in zip(Tcl, np.asarray(pc, dtype=float).tolist(), np.asarray(omega, dtype=float).tolist())]
+    K0l = None
+    if K0 is not None:
+        K0l = np.asarray(K0, dtype=float).tolist()
+        if not all(math.isfinite(k) for k in K0l):
+            K0l = None
+    trials = [[zi * k for zi, k in zip(zl, Kw)], [zi / k for zi, k in zip(zl, Kw)]]
+    if K0l is not None and max([abs(math.log(k)) for k in K0l]) > 1e-5:
+        trials += [[zi * k for zi, k in zip(zl, K0l)], [zi / k for zi, k in zip(zl, K0l)]]
+    n_skippable = len(trials)
     # near-pure trials for components that can condense as their own phase: subcritical (T < Tc) and not
     # the dominant component (whose near-pure trial is the feed itself); common practice, cf. DOMAIN 4.1
-    pure = [i for i in np.nonzero((T < Tc) & (z > 0) & (z < 0.5))[0]]
-    trials = list(extra)
-    for i in pure:
-        t = 1e-3 * z
-        t[i] = 1.0
-        trials.append(t)
-    st = stability_test(kern, z, p, Kw, lpz, Zz, pure_trials=False, extra_trials=trials)
+    for i in range(nc):
+        if T < Tcl[i] and 0.0 < zl[i] < 0.5:
+            t = [1e-3 * v for v in zl]
+            t[i] = 1.0
+            trials.append(t)
+    # one Wilson or warm-start trial proving instability is enough to start the split; the near-pure
+    # trials always run (the lowest tm wins), and if the split fails every trial is run and it is retried
+    st = _stability_lists(kern, zl, p, trials, lpz, Zz, skippable=n_skippable)
     iters = st.iterations
     if st.stable:
         return _single(kern, z, p, T, Zz, st.tm_min, iters, "stability: stable")
     out = None
-    starts = [np.log(st.K)]
-    if K0 is not None and np.all(np.isfinite(K0)):
-        starts.insert(0, np.log(K0))
-    for lnK in starts:
-        out = _split(kern, z, p, np.where(z > 0, lnK, 0.0))
-        if out is not None and _guards_pass(kern, z, p, out, gz, lpz):
-            break
-        out = None
+    starts = [st.K.tolist()]
+    if K0l is not None:
+        starts.insert(0, K0l)
+    tried = []
+    while out is None and starts:
+        Ks = starts.pop(0)
+        tried.append(Ks)
+        lnK = [math.log(k) if zi > 0 else 0.0 for k, zi in zip(Ks, zl)]
+        out = _split(kern, zl, p, lnK)
+        if out is not None and not _guards_pass(zl, out, lpz):
+            out = None
+        if out is None and not starts and not st.complete:
+            st = _stability_lists(kern, zl, p, trials, lpz, Zz)
+            iters += st.iterations
+            if not st.stable and st.K.tolist() not in tried:
+                starts.append(st.K.tolist())
     if out is None:
         return _single(kern, z, p, T, Zz, st.tm_min, iters, "split rejected by guards: single phase")
     beta, x, y, lnK, lpx, lpy, Zx, Zy, it, method = out
     if not 0.0 < beta < 1.0:
         return _single(kern, z, p, T, Zz, st.tm_min, iters + it, f"{method}: beta={beta:.3g} outside (0, 1)")
     RT = kern.RT
+    x, y = np.array(x), np.array(y)
     rho_x = kern.density(x, Zx * RT / p)
     rho_y = kern.density(y, Zy * RT / p)
     if rho_x < rho_y:  # label the denser phase liquid
         x, y, rho_x, rho_y, beta = y, x, rho_y, rho_x, 1.0 - beta
     # second-liquid check: near-pure trials on the liquid for components that are subcritical
     # (T < Tc) and not already dominant in it (common practice: only these can form their own liquid)
-    cand = np.nonzero((T < Tc) & (x < 0.5) & (z > 0))[0]
-    if check_second_liquid and len(z) > 1 and cand.size:
-        lpl, Zl, _ = kern.ln_phi(x, p, "stable")
+    xl = x.tolist()
+    cand = [i for i in range(nc) if T < Tcl[i] and xl[i] < 0.5 and zl[i] > 0]
+    if check_second_liquid and nc > 1 and cand:
+        lpl, Zl, _ = kern.ln_phi_list(xl, p, "stable")
         trials = []
         for i in cand:
-            t = 1e-3 * x
+            t = [1e-3 * v for v in xl]
             t[i] = 1.0
             trials.append(t)
-        s2 = stability_test(kern, x, p, Kw, lpl, Zl, pure_trials=False, wilson_trials=False, extra_trials=trials)
+        s2 = _stability_lists(kern, xl, p, trials, lpl, Zl)
         if not s2.stable and not s2.w_is_vapor and np.sum((s2.w - y) ** 2) > 1e-6:
             raise SecondLiquidError(
                 f"flash at T = {T:.3f} K, p = {p / 1e5:.4f} bar: the liquid splits again into two liquids "
@@ -281,26 +371,38 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
                        SolverReport(True, iters + it, 0.0, method))
 
 
-def _guards_pass(kern, z, p, out, gz, lpz):
+def _guards_pass(z, out, lpz):
+    """The checks of every two-phase answer (issue 3 item 6), on lists: finite compositions, |ln K| away
+    from 0, distinct phase volumes, material balance to 1e-10, Gibbs energy below the single phase."""
     beta, x, y, lnK, lpx, lpy, Zx, Zy, it, method = out
-    if not np.all(np.isfinite(x)) or not np.all(np.isfinite(y)):
+    if not all(math.isfinite(v) for v in x) or not all(math.isfinite(v) for v in y):
         return False
-    if float(np.max(np.abs(np.log(np.where(z > 0, y / np.where(x > 0, x, 1.0), 1.0))))) < LNK_MIN:
+    big = 0.0
+    for zi, xi, yi in zip(z, x, y):
+        if zi > 0:
+            r = yi / (xi if xi > 0 else 1.0)
+            big = max(big, abs(math.log(r)) if r > 0 else math.inf)
+    if big < LNK_MIN:
         return False
     if abs(Zx / Zy - 1.0) < RHO_RATIO_MIN:
         return False
-    if float(np.max(np.abs((1.0 - beta) * x + beta * y - z))) > 1e-10:
+    if max([abs((1.0 - beta) * xi + beta * yi - zi) for zi, xi, yi in zip(z, x, y)]) > 1e-10:
         return False
-    with np.errstate(divide="ignore", invalid="ignore"):
-        g1 = np.where(z > 0, z * (np.log(z) + lpz), 0.0).sum()
-    g2 = _gibbs_split(kern, p, beta, x, y, lpx, lpy)
+    g1 = _gibbs(z, lpz)
+    g2 = (1.0 - beta) * _gibbs(x, lpx) + beta * _gibbs(y, lpy)
     return bool(g2 < g1 + 1e-13) or not 0.0 < beta < 1.0
 
 
 def _single(kern, z, p, T, Z, tm, iters, why):
     rho = kern.density(z, Z * kern.RT / p)
     # root type: liquid-like if the compressibility is below that of the vapour-like root at this p
-    zs, _, B = kern._roots(float(z @ kern.aij @ z), float(kern.b @ z), p)
+    if kern._lists is not None:  # a and b as ln_phi computed them, so that Z is one of these roots exactly
+        zl = z.tolist()
+        aij, b = kern._lists
+        a, bm = kern._dot(zl, kern._mv(aij, zl)), kern._dot(b, zl)
+    else:
+        a, bm = float(z @ (kern.aij @ z)), float(kern.b @ z)
+    zs, _, B = kern._roots(a, bm, p)
     kind = "liq" if (len(zs) > 1 and Z == zs[0]) or Z < 0.3 else "vap"  # Z < 0.3: dense (common practice)
     return FlashResult(T, p, z, None, None, None, None, None, None, float(rho), kind, tm,
                        SolverReport(True, iters, 0.0, why))
@@ -314,36 +416,56 @@ def sat_residual(model, z, X, incipient_is_y, z_root, w_root):
 
     F_i = ln K_i + ln phi_i(y) - ln phi_i(x), F_nc = sum(y - x). With ``incipient_is_y`` the feed
     is x and y = K z (bubble-type), else the feed is y and x = z/K (dew-type). Returns F (nc+1,),
-    J (nc+1, nc+2), x, y (normalised), Zx-free densities via V's.
+    J (nc+1, nc+2), x, y (normalised), and the phase densities rho_x, rho_y [mol m-3].
     """
+    F, J, x, y, rx, ry = _sat_lists(model, np.asarray(z, dtype=float).tolist(),
+                                    np.asarray(X, dtype=float).tolist(), incipient_is_y, z_root, w_root)
+    return np.array(F), np.array(J), np.array(x), np.array(y), rx, ry
+
+
+def _sat_lists(model, z, X, incipient_is_y, z_root, w_root):
+    """:func:`sat_residual` on lists of Python floats (F, J as lists; x, y lists; densities floats).
+
+    Only the incipient phase's composition derivatives enter J; they are taken in factored form
+    (``dn_parts``) and J assembled in one pass."""
     nc = len(z)
-    lnK, lnT, lnP = X[:nc], X[nc], X[nc + 1]
-    T, P = np.exp(lnT), np.exp(lnP)
-    K = np.exp(lnK)
+    exp = math.exp
+    T, P = exp(X[nc]), exp(X[nc + 1])
+    K = [exp(v) for v in X[:nc]]
     kern = model.phase_kernel(T)
     if incipient_is_y:
-        nx, ny = z, K * z
+        nx, ny = z, [k * zi for k, zi in zip(K, z)]
         rx, ry = z_root, w_root
     else:
-        nx, ny = z / K, z
+        nx, ny = [zi / k for zi, k in zip(z, K)], z
         rx, ry = w_root, z_root
-    Sx, Sy = nx.sum(), ny.sum()
-    x, y = nx / Sx, ny / Sy
-    lpx, dnx, dTx, dPx, Vx = kern.ln_phi_and_derivs(x, P, rx)
-    lpy, dny, dTy, dPy, Vy = kern.ln_phi_and_derivs(y, P, ry)
-    F = np.empty(nc + 1)
-    F[:nc] = lnK + lpy - lpx
-    F[nc] = Sy - Sx
-    J = np.zeros((nc + 1, nc + 2))
-    J[:nc, :nc] = np.eye(nc)
-    if incipient_is_y:
-        J[:nc, :nc] += dny * y[None, :]
-        J[nc, :nc] = ny
+    Sx, Sy = sum(nx), sum(ny)
+    x, y = [v / Sx for v in nx], [v / Sy for v in ny]
+    w = y if incipient_is_y else x
+    if kern._lists is not None:
+        feed, inc, rf, ri = (x, y, rx, ry) if incipient_is_y else (y, x, ry, rx)
+        lpf, Vf, _, _, _, _, _, _, _, dTf, dPf = kern.dn_parts(feed, P, rf, True)
+        lpi, Vi, b, u, wv, c, aij, Pv, q, dTi, dPi = kern.dn_parts(inc, P, ri, True)
+        # J_ij = delta_ij + (n d ln phi_i/d n_j) w_j of the incipient phase
+        J = [[(1.0 + bi * uj + bj * wi + c * aij_ + Pi * qj) * wj for uj, bj, aij_, qj, wj in zip(u, b, row, q, w)]
+             for bi, wi, Pi, row in zip(b, wv, Pv, aij)]
+        if incipient_is_y:
+            lpx, dTx, dPx, Vx, lpy, dTy, dPy, Vy = lpf, dTf, dPf, Vf, lpi, dTi, dPi, Vi
+        else:
+            lpx, dTx, dPx, Vx, lpy, dTy, dPy, Vy = lpi, dTi, dPi, Vi, lpf, dTf, dPf, Vf
     else:
-        J[:nc, :nc] += dnx * x[None, :]
-        J[nc, :nc] = nx
-    J[:nc, nc] = T * (dTy - dTx)
-    J[:nc, nc + 1] = P * (dPy - dPx)
+        lpx, dnx, dTx, dPx, Vx = kern.derivs_list(x, P, rx)
+        lpy, dny, dTy, dPy, Vy = kern.derivs_list(y, P, ry)
+        dm = dny if incipient_is_y else dnx
+        J = [[dij * wj for dij, wj in zip(row, w)] for row in dm]
+    F = [X[i] + lpy[i] - lpx[i] for i in range(nc)]
+    F.append(Sy - Sx)
+    for i in range(nc):
+        row = J[i]
+        row[i] += 1.0
+        row.append(T * (dTy[i] - dTx[i]))
+        row.append(P * (dPy[i] - dPx[i]))
+    J.append(list(ny if incipient_is_y else nx) + [0.0, 0.0])
     return F, J, x, y, kern.density(x, Vx), kern.density(y, Vy)
 
 
@@ -353,33 +475,97 @@ def solve_sat_point(model, z, X0, spec_index, spec_value, incipient_is_y, z_root
 
     Returns (X, x, y, rho_x, rho_y, iterations). Raises ConvergenceError.
     """
+    X, x, y, rx, ry, it, _ = _solve_sat_lists(model, np.asarray(z, dtype=float).tolist(),
+                                              np.asarray(X0, dtype=float).tolist(), spec_index, float(spec_value),
+                                              incipient_is_y, z_root, w_root, tol, max_iter, max_step)
+    return np.array(X), np.array(x), np.array(y), rx, ry, it
+
+
+def _sat_F_lists(model, z, X, incipient_is_y, z_root, w_root):
+    """The residuals F of :func:`_sat_lists` alone (ln phi without derivatives), with x, y and the densities."""
     nc = len(z)
-    X = np.array(X0, dtype=float)
+    exp = math.exp
+    T, P = exp(X[nc]), exp(X[nc + 1])
+    K = [exp(v) for v in X[:nc]]
+    kern = model.phase_kernel(T)
+    if incipient_is_y:
+        nx, ny = z, [k * zi for k, zi in zip(K, z)]
+        rx, ry = z_root, w_root
+    else:
+        nx, ny = [zi / k for zi, k in zip(z, K)], z
+        rx, ry = w_root, z_root
+    Sx, Sy = sum(nx), sum(ny)
+    x, y = [v / Sx for v in nx], [v / Sy for v in ny]
+    lpx, Zx, _ = kern.ln_phi_list(x, P, rx)
+    lpy, Zy, _ = kern.ln_phi_list(y, P, ry)
+    F = [X[i] + lpy[i] - lpx[i] for i in range(nc)]
+    F.append(Sy - Sx)
+    RT = kern.RT
+    return F, x, y, kern.density(x, Zx * RT / P), kern.density(y, Zy * RT / P)
+
+
+CHECK_ONLY_BELOW = 1e-6  # [-] a Newton step from a residual below this is checked with ln phi alone (speed setting)
+
+
+def _solve_sat_lists(model, z, X, spec_index, spec_value, incipient_is_y, z_root, w_root, tol=1e-12,
+                     max_iter=30, max_step=None, sens=False):
+    """:func:`solve_sat_point` on lists. With ``sens`` it also returns the sensitivities dX/dX_s along
+    the curve (J dX = 0, dX_s = 1), solved with the same elimination as the Newton step, from the last
+    Jacobian evaluated (at the returned X, or at the Newton iterate before it when the returned point
+    was only checked or when the start already met ``tol``).
+
+    After a step taken from a residual below ``CHECK_ONLY_BELOW`` the new point is first checked with
+    ln phi alone (its residual is then expected below ``tol``); if the check fails the full evaluation
+    follows at the same point, so the iterates and the iteration count are those of plain Newton."""
+    nc = len(z)
+    X = list(X)
     X[spec_index] = spec_value
-    res = np.inf
+    free = [i for i in range(nc + 2) if i != spec_index]
+    res = math.inf
+    dX = None
+    check_only = False
     for it in range(1, max_iter + 1):
         try:
-            F, J, x, y, rx, ry = sat_residual(model, z, X, incipient_is_y, z_root, w_root)
+            if check_only and it > 1:
+                F, x, y, rx, ry = _sat_F_lists(model, z, X, incipient_is_y, z_root, w_root)
+                if max([abs(v) for v in F]) < tol:
+                    return X, x, y, rx, ry, it, dX
+            F, J, x, y, rx, ry = _sat_lists(model, z, X, incipient_is_y, z_root, w_root)
         except (ArithmeticError, ValueError, FloatingPointError):
             raise ConvergenceError("saturation point: no volume root on the way",
                                    SolverReport(False, it, float(res), "Newton (ln K, ln T, ln p)"))
-        res = float(np.max(np.abs(F)))
-        if res < tol and it > 1:
-            return X, x, y, rx, ry, it
-        Jsq = np.delete(J, spec_index, axis=1)
+        res = max([abs(v) for v in F])
+        if not res < math.inf:  # NaN or inf residual: the Newton step would be meaningless
+            break
+        Jf = [[row[i] for i in free] for row in J]
+        done = res < tol and it > 1
+        rhs = [] if done else [[-v for v in F]]
+        if sens:
+            rhs.append([-row[spec_index] for row in J])
         try:
-            d = np.linalg.solve(Jsq, -F)
-        except np.linalg.LinAlgError:
+            sol = solve_dense_many(Jf, rhs) if rhs else []
+        except ZeroDivisionError:
+            if done:
+                return X, x, y, rx, ry, it, None
             break
+        if sens:
+            dX = [1.0] * (nc + 2)
+            for k, i in enumerate(free):
+                dX[i] = sol[-1][k]
+        if done:
+            return X, x, y, rx, ry, it, dX
+        d = sol[0]
         if max_step is not None:
-            m = np.max(np.abs(d))
+            m = max([abs(v) for v in d])
             if m > max_step:
-                d *= max_step / m
-        free = [i for i in range(nc + 2) if i != spec_index]
-        X[free] += d
-        if not np.all(np.isfinite(X)):
+                f = max_step / m
+                d = [v * f for v in d]
+        for k, i in enumerate(free):
+            X[i] += d[k]
+        if not all(math.isfinite(v) for v in X):
             break
-        if res < tol:
-            return X, x, y, rx, ry, it
+        if res < tol:  # converged before the step (first evaluation): x, y, densities of the start
+            return X, x, y, rx, ry, it, dX
+        check_only = res < CHECK_ONLY_BELOW and (max_step is None or m <= max_step)
     raise ConvergenceError("saturation point did not converge",
                            SolverReport(False, max_iter, float(res), "Newton (ln K, ln T, ln p)"))
