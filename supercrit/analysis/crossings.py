@@ -275,6 +275,15 @@ def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[f
                 continue
             if ga == 0.0:
                 continue
+            if scan is not g:
+                # the bracket came from the interpolated line: the exact function decides. Both ends on one
+                # side means the path only touches the line (within the spline's error, ~0.02 K): no crossing
+                try:
+                    ga, gb = g(states[i]), g(states[i + 1])
+                except SupercritError:
+                    continue
+                if not (np.isfinite(ga) and np.isfinite(gb)) or ga * gb > 0 or ga == 0.0:
+                    continue
             tstar = brentq(lambda t: g(path(t)), good_t[i], good_t[i + 1], xtol=1e-10, rtol=1e-12)
             st = path(tstar)
             # g > 0 on the allowed side of the boundary (fluid, within the limit); g < 0 beyond it

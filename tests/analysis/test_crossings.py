@@ -64,3 +64,19 @@ def test_limits_are_located():
     assert by["min-metal-T"].T == pytest.approx(244.15, abs=1e-6)
     assert by["max-p"].p == pytest.approx(120e5, rel=1e-9)
     assert "max-T" not in by
+
+
+def test_path_touching_the_pseudo_critical_line_is_not_an_error():
+    """Found by the bundled extraction sweep (hp-pump 75 bar, extraction heater 28 degC): a step whose path
+    comes within ~0.02 K of the pseudo-critical line without crossing it. The interpolated line bracketed a
+    crossing, the exact line did not; the analysis must decide by the exact line, not fail."""
+    from pathlib import Path
+
+    from supercrit.runner import run_scenario
+    from supercrit.scenario import load_scenario
+    from supercrit.sweep.variants import Variant, variant_scenario
+
+    base = load_scenario(Path(__file__).resolve().parents[2] / "scenarios" / "co2_extraction_loop.yaml")
+    run = run_scenario(variant_scenario(base, Variant(17, (75e5, 301.15))))
+    assert not run.errors
+    assert all(ra.verdict is not None for ra in run.analysis.routes)
