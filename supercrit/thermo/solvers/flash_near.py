@@ -33,16 +33,17 @@ def single_phase_p_prop(model, ideal, M, x, p: float, target: float, key: str, T
     """(T [K], rho [mol m-3]) of one phase with pressure p [Pa] and h [J mol-1] (key 'h') or
     s [J mol-1 K-1] (key 's'), by Newton's method from (T0, rho0); None if it does not converge.
 
-    Converged when the last step changed T by at most 1e-11 T and rho by at most 1e-11 rho
-    (quadratic convergence: the residuals are then at round-off). Steps are limited to 30 K and
-    to 30 % of the density; the iteration gives up (None) on leaving [T_min, T_max], on a
-    mechanically unstable density ((dp/drho)_T <= 0) or after ``max_iter`` steps.
+    Converged when the last full step changed T and rho by at most 1e-11 (relative), or by at most
+    1e-7 after a previous step of at most 1e-3 (quadratic convergence leaves an error of order 1e-14).
+    Steps are limited to 30 K and to 30 % of the density; the iteration gives up (None) on leaving
+    [T_min, T_max], on a mechanically unstable density ((dp/drho)_T <= 0) or after ``max_iter`` steps.
     """
     x = np.asarray(x, dtype=float)
     T, rho = float(T0), float(rho0)
     if not (T > 0 and rho > 0 and math.isfinite(T) and math.isfinite(rho)):
         return None
     is_h = key == "h"
+    prev = float("inf")
     for _ in range(max_iter):
         try:
             pr, h, s, cv, dpdT, dpdrho = _props(model, ideal, M, T, rho, x)
@@ -74,8 +75,12 @@ def single_phase_p_prop(model, ideal, M, x, p: float, target: float, key: str, T
         rho += scale * drho
         if not (T_min <= T <= T_max) or rho <= 0.0:
             return None
-        if scale == 1.0 and abs(dT) <= 1e-11 * T and abs(drho) <= 1e-11 * rho:
+        size = max(abs(dT) / T, abs(drho) / rho)
+        # converged: a step at round-off, or (quadratic convergence) a step below 1e-7 after one below 1e-3,
+        # which leaves an error of order 1e-14 after it
+        if scale == 1.0 and (size <= 1e-11 or (size <= 1e-7 and prev <= 1e-3)):
             return T, rho
+        prev = size if scale == 1.0 else float("inf")
     return None
 
 
