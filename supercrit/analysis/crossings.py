@@ -187,6 +187,35 @@ def _bisect_label(path, ta, sa, tb, sb, max_iter=80):
     return ta, sa, tb, sb
 
 
+def _saturation_crossing(fluid, path, ta, sa, tb, sb):
+    """A pure fluid's path entering or leaving the two-phase region between two samples, located directly:
+    the root in t of h(t) - h_sat(p(t)) on the single-phase side (saturated liquid for a liquid sample,
+    saturated vapour for a gas sample), Brent's method to 1e-12 in t; the crossing state is that
+    saturated state. None (the caller bisects on labels) for any other label change or where the
+    saturation line is not defined along the bracket."""
+    la, lb = _label(sa), _label(sb)
+    if "two-phase" not in (la, lb) or {la, lb} - {"two-phase", "liquid", "gas"} or \
+            not hasattr(path, "p_of") or fluid._crit is None:
+        return None
+    single = lb if la == "two-phase" else la
+    which = "liquid" if single == "liquid" else "vapor"
+
+    def g(t):
+        sat = fluid.saturation(p=path.p_of(t))
+        return path.h_of(t) - float(getattr(sat, which).h)
+
+    try:
+        ga, gb = g(ta), g(tb)
+        if not (np.isfinite(ga) and np.isfinite(gb)) or ga * gb > 0:
+            return None
+        tstar = ta if ga == 0 else tb if gb == 0 else brentq(g, ta, tb, xtol=1e-12, rtol=1e-14)
+        st = getattr(fluid.saturation(p=path.p_of(tstar)), which)
+    except SupercritError:
+        return None
+    kind, side = _classify(la, lb, True)
+    return Crossing(kind, float(tstar), float(st.T), float(st.p), la, lb, side, "", st)
+
+
 def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[float], *, step_id: str = "",
                    limits: dict | None = None, samples: Sequence | None = None) -> list[Crossing]:
     """Every boundary crossing along ``path`` between the given samples, in path order.
@@ -225,6 +254,10 @@ def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[f
     pure = fluid.is_pure
     for (ta, sa), (tb, sb) in zip(zip(good_t, states), zip(good_t[1:], states[1:])):
         if _label(sa) != _label(sb):
+            direct = _saturation_crossing(fluid, path, ta, sa, tb, sb) if pure else None
+            if direct is not None:
+                out.append(direct)
+                continue
             a0, sa0, b0, sb0 = _bisect_label(path, ta, sa, tb, sb)
             kind, side = _classify(_label(sa0), _label(sb0), pure)
             st = sb0 if _label(sb0) == "two-phase" else sa0

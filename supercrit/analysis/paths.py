@@ -49,4 +49,7 @@ def path_function(fluid, step_path):
         near = states[k - 1] if k == t.size or (k > 0 and u - t[k - 1] <= t[k] - u) else states[k]
         return fluid.state(p=float(P(u)), h=float(H(u)), near=near)
 
+    path.p_of = lambda u: float(P(min(max(float(u), 0.0), 1.0)))  # p [Pa] and h [J mol-1] along the path
+    path.h_of = lambda u: float(H(min(max(float(u), 0.0), 1.0)))
+
     return path, t, states
