@@ -232,6 +232,20 @@ class Fluid:
                 st = self._state_p_prop_near(float(p), float(target), key, near)
                 if st is not None:
                     return st
+                if not self.is_pure and isinstance(near, State) and np.ndim(near.T) == 0 \
+                        and getattr(self.model, "has_two_phase", True):
+                    # the full flash, bracketed from the neighbour's temperature (and K-values if two-phase)
+                    K0 = None
+                    if int(np.asarray(near.phase_)) == TWO_PHASE and near.x_l_ is not None:
+                        xl, xv = np.asarray(near.x_l_, float), np.asarray(near.x_v_, float)
+                        if xl.shape == self.x.shape and np.all(xl > 0) and np.all(xv > 0):
+                            K0 = xv / xl
+                    from .mixture import mixture_state_p_prop
+
+                    p_, t_ = np.broadcast_arrays(np.asarray(p, dtype=float), np.asarray(target, dtype=float))
+                    check_Tp(np.ones_like(p_), p_)
+                    if np.all(np.isfinite(t_)):
+                        return mixture_state_p_prop(self, p_, t_, key, T_guess=float(near.T), K0=K0)
             return self._state_p_prop(p, target, key)
         raise InputError(f"give exactly one pair of specifications: (T, p), (T, rho), (p, h) or (p, s); "
                          f"got {sorted(given) or 'none'}", "state")

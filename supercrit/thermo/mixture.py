@@ -225,10 +225,11 @@ def flash_p_prop_mixture(fluid, p, target, key, T_guess=300.0, K0=None, xtol=1e-
     return r
 
 
-def mixture_state_p_prop(fluid, p, target, key) -> State:
-    """Mixture state(s) from (p [Pa], h [J mol-1]) or (p, s [J mol-1 K-1]); batches loop with warm starts."""
+def mixture_state_p_prop(fluid, p, target, key, T_guess=300.0, K0=None) -> State:
+    """Mixture state(s) from (p [Pa], h [J mol-1]) or (p, s [J mol-1 K-1]); batches loop with warm starts
+    (the first element from ``T_guess`` [K] and K-values ``K0``, e.g. a neighbouring two-phase state's)."""
     p, target = np.broadcast_arrays(np.asarray(p, dtype=float), np.asarray(target, dtype=float))
-    out, Tg, K0 = [], 300.0, None
+    out, Tg = [], float(T_guess)
     for pi, ti in zip(p.ravel(), target.ravel()):
         r = flash_p_prop_mixture(fluid, float(pi), float(ti), key, T_guess=Tg, K0=K0)
         Tg = r.T
