@@ -20,6 +20,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from ..errors import InputError
+from ..thermo.solvers.flash_near import continue_phase
 from .base import N_SEGMENTS, SAMPLE_PATHS, StepPath, StepResult, only_inlet, sample_ph, state_ph, where
 
 
@@ -28,7 +29,9 @@ def polytropic_path(fluid, st1, p2: float, eta_p: float, expand: bool = False, n
 
     Integrated in ln p with the classical 4th-order Runge-Kutta method, dh/d(ln p) = f p v,
     at least 20 steps and |d ln p| <= 0.1 per step. Returns (pressures [Pa], states); the last
-    state is the integrated end."""
+    state is the integrated end. Every sampled state is a full (p, h) flash; the three slope
+    evaluations inside a step continue the phase of the step's start (no stability check), and a
+    step whose end state has another phase than its start is repeated with full flashes throughout."""
     p1 = float(st1.p)
     lr = math.log(p2 / p1)
     n = n_steps or max(N_SEGMENTS, int(math.ceil(abs(lr) / 0.1)))
@@ -41,18 +44,45 @@ def polytropic_path(fluid, st1, p2: float, eta_p: float, expand: bool = False, n
     def rate(state):
         return f * float(state.p) / float(state.rho_molar)
 
+    def fast_step(st, pa, pm, pb, ha, k1):
+        # slopes inside the step on the phase of its start (no stability check); None where Newton fails
+        T0, r0 = float(st.T), float(st.rho_molar)
+        a = continue_phase(fluid, pm, ha + 0.5 * d * k1, "h", T0, r0)
+        if a is None:
+            return None
+        k2 = f * pm / a[1]
+        b = continue_phase(fluid, pm, ha + 0.5 * d * k2, "h", *a)
+        if b is None:
+            return None
+        k3 = f * pm / b[1]
+        c = continue_phase(fluid, pb, ha + d * k3, "h", *b)
+        if c is None:
+            return None
+        k4 = f * pb / c[1]
+        return ha + d * (k1 + 2 * k2 + 2 * k3 + k4) / 6.0
+
     for k in range(n):
         pa, pb = float(ps[k]), float(ps[k + 1])
         pm = pa * math.exp(0.5 * d)
         ha = float(st.h)
         k1 = rate(st)
-        s2 = state_ph(fluid, pm, ha + 0.5 * d * k1, st)
-        k2 = rate(s2)
-        s3 = state_ph(fluid, pm, ha + 0.5 * d * k2, s2)
-        k3 = rate(s3)
-        s4 = state_ph(fluid, pb, ha + d * k3, s3)
-        k4 = rate(s4)
-        st = state_ph(fluid, pb, ha + d * (k1 + 2 * k2 + 2 * k3 + k4) / 6.0, s4)
+        start_phase = str(st.phase)
+        new = None
+        if start_phase in ("gas", "liquid", "supercritical"):
+            h_end = fast_step(st, pa, pm, pb, ha, k1)
+            if h_end is not None:
+                new = state_ph(fluid, pb, h_end, st)
+                if str(new.phase) != start_phase:
+                    new = None  # the phase changed within the step: repeat it with full flashes
+        if new is None:
+            s2 = state_ph(fluid, pm, ha + 0.5 * d * k1, st)
+            k2 = rate(s2)
+            s3 = state_ph(fluid, pm, ha + 0.5 * d * k2, s2)
+            k3 = rate(s3)
+            s4 = state_ph(fluid, pb, ha + d * k3, s3)
+            k4 = rate(s4)
+            new = state_ph(fluid, pb, ha + d * (k1 + 2 * k2 + 2 * k3 + k4) / 6.0, s4)
+        st = new
         states.append(st)
     return ps, states
 

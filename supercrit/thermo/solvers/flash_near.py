@@ -134,3 +134,14 @@ def isobar_walker(fluid, p: float, key: str):
         return float(pr[key])
 
     return value
+
+
+def continue_phase(fluid, p: float, target: float, key: str, T0: float, rho0: float):
+    """(T [K], rho [mol m-3]) at (p, h) or (p, s) on the same single phase as the neighbour (T0, rho0),
+    without a phase-stability check; None where Newton does not settle.
+
+    For slope evaluations *inside* one integration step whose end states are flashed in full (the
+    polytropic path of a compressor): where the end states show that the phase changed within the
+    step, the caller repeats the step with full flashes."""
+    lo, hi = fluid.__dict__.get("_T_lims") or fluid._T_limits()
+    return single_phase_p_prop(fluid.model, fluid.ideal, fluid.M_i, fluid.x, p, target, key, T0, rho0, lo, hi)
