@@ -67,3 +67,16 @@ def test_bundled_scenario_runs_with_cubic_models(name, model):
     for rr in run.result.routes.values():
         assert rr.balance.mass < 1e-9 and rr.balance.energy < 1e-9
         assert rr.iterations < 50
+
+
+def test_json_does_not_depend_on_what_the_process_computed_before(tmp_path):
+    """A sweep worker computes many variants in one process; per-process caches (the interpolated
+    pseudo-critical line) must never change an answer. The extraction loop crosses and approaches the
+    pseudo-critical line on isobars and along pumps and compressors."""
+    from supercrit.analysis import crossings
+
+    f = ROOT / "scenarios" / "co2_extraction_loop.yaml"
+    crossings._LINES.clear()
+    a = write_outputs(run_scenario(f), tmp_path / "a", report=False)["json"].read_bytes()
+    b = write_outputs(run_scenario(f), tmp_path / "b", report=False)["json"].read_bytes()  # line cached now
+    assert a == b

@@ -271,12 +271,13 @@ def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[f
         def g_pc(s):
             if s.p <= pc:
                 return np.nan
+            # the exact solve starts from the interpolated line, built here if this process has not built it
+            # yet: the answer then never depends on which variants a process computed before (a sweep's
+            # table is the same from 1 or N processes)
             hint = None
-            line = _LINES.get(_signature(fluid))
-            if line is not None:
-                v = np.log(max(float(s.p) / line[1] - 1.0, 1e-12))
-                if np.log(1e-4) <= v <= np.log(59.0):
-                    hint = float(line[0](v))
+            v = np.log(max(float(s.p) / pc - 1.0, 1e-12))
+            if np.log(1e-4) <= v <= np.log(59.0):
+                hint = _pseudo_critical_line(fluid)(float(s.p))
             return s.T - _pseudo_critical_T(fluid, s.p, hint)
 
         funcs.append(("pseudo-critical", g_pc))
