@@ -67,7 +67,9 @@ def _critical(fluid):
         crit = None
         try:
             env = mixture_envelope(fluid)
-            if env.critical is not None:
+            if env.critical is not None and "critical_rho" in env.extra:  # refined by Heidemann-Khalil there
+                crit = _Crit(env.critical.T, env.critical.p, env.extra["critical_rho"])
+            elif env.critical is not None:
                 try:
                     T, p, rho, _ = critical_point_hk(fluid.model, fluid.x, env.critical.T, env.critical.p)
                     if abs(T - env.critical.T) < 0.5 and abs(p / env.critical.p - 1.0) < 1e-2:
@@ -255,64 +257,206 @@ class SaturationPoint:
     report: SolverReport
 
 
+def _curve_nodes(env, nc):
+    """The traced envelope as curve nodes: (X, branch) in order, X = (ln K, ln T, ln p) lists, with the
+    critical point (ln K = 0, branch 'critical') between the branches where the trace passed it."""
+    nodes = [(list(k) + [float(np.log(T)), float(np.log(p))], b)
+             for k, T, p, b in zip(env.lnK.tolist(), env.T, env.p, env.branch)]
+    if env.critical is not None and env.critical_index is not None and 0 < env.critical_index < len(nodes):
+        nodes.insert(env.critical_index, ([0.0] * nc + [float(np.log(env.critical.T)), float(np.log(env.critical.p))],
+                                          "critical"))
+    return nodes
+
+
+def _solve_on_stretch(fluid, a, b, lab, spec, val):
+    """The point of the envelope with X[spec] = val on the stretch between nodes a and b (lists X; one may be
+    the critical point), or None.
+
+    First Newton with X[spec] fixed from the linear interpolation of a and b, accepted if it stays on the
+    stretch (largest ln K of the same sign, no |ln K| collapse, the stretch's leading variable within the
+    stretch); otherwise (near the critical point, where the Newton start is close to the trivial
+    solution or the other branch) the stretch is followed as a curve: its leading variable u is
+    specified and u is solved for X[spec](u) = val by Brent's method, then Newton polishes X[spec] = val."""
+    from .solvers.flash import _solve_sat_lists
+
+    nc = len(fluid.x)
+    zl = fluid.x.tolist()
+    model = fluid.model
+    crit_end = max(abs(v) for v in a[:nc]) == 0.0 or max(abs(v) for v in b[:nc]) == 0.0
+    far = b if max(abs(v) for v in a[:nc]) == 0.0 else a
+    big = max(range(nc), key=lambda i: abs(far[i]))
+    fr, wr = lab
+    t = (val - a[spec]) / (b[spec] - a[spec])
+    X0 = [u + t * (v - u) for u, v in zip(a, b)]
+    if crit_end:
+        par = big
+        # not closer to the critical point than 5 % of the stretch: there (|ln K| below ~1e-5) Newton on
+        # the saturation equations is drawn to the trivial solution K = 1 (known limit, within ~1e-3 K of T_c)
+        lo, hi = sorted((far[par], 0.05 * far[par]))
+    else:
+        par = max((i for i in range(nc + 2) if i != spec), key=lambda i: abs(a[i] - b[i]))
+        lo, hi = sorted((a[par], b[par]))
+
+    def on_stretch(X, slack):
+        if _sgn(X[big]) != _sgn(far[big]) or max(abs(v) for v in X[:nc]) < 1e-3 * max(abs(v) for v in far[:nc]):
+            return False
+        w = (hi - lo) * slack
+        return lo - w <= X[par] <= hi + w
+
+    if not crit_end:
+        try:
+            X, x, y, rx, ry, it, _ = _solve_sat_lists(model, zl, X0, spec, val, False, fr, wr, max_iter=40)
+            if on_stretch(X, 0.02):
+                return X, x, y, rx, ry, it
+        except ConvergenceError:
+            pass
+    # follow the curve: X(u) with u = X[par] specified, started from the interpolation of the ends
+    memo = {}
+
+    def g(u):
+        tt = (u - a[par]) / (b[par] - a[par])
+        Xg = [p0 + tt * (p1 - p0) for p0, p1 in zip(a, b)]
+        X = _solve_sat_lists(model, zl, Xg, par, float(u), False, fr, wr, tol=1e-12, max_iter=30, max_step=0.5)[0]
+        memo[float(u)] = X
+        return X[spec] - val
+
+    try:
+        ga, gb = g(lo), g(hi)
+        if ga * gb > 0:
+            return None
+        u = brentq(g, lo, hi, xtol=1e-14, rtol=4e-16, maxiter=100) if ga * gb < 0 else (lo if ga == 0 else hi)
+        Xu = memo.get(float(u))
+        if Xu is None:
+            g(u)
+            Xu = memo[float(u)]
+        X, x, y, rx, ry, it, _ = _solve_sat_lists(model, zl, Xu, spec, val, False, fr, wr, max_iter=20)
+    except (ConvergenceError, ValueError, RuntimeError):
+        return None
+    if not on_stretch(X, 1e-6) or max(abs(p - q) for p, q in zip(X, Xu)) > 1e-6:
+        return None
+    return X, x, y, rx, ry, it
+
+
+def _sgn(v):
+    return (v > 0) - (v < 0)
+
+
+def envelope_points_at(fluid, T=None, p=None, branch=None):
+    """Every point of the traced envelope at T [K] (or p [Pa]) on ``branch`` ('bubble', 'dew' or None for
+    both), ordered along the curve: a list of (branch, X, x, y, rho_x, rho_y, iterations) with
+    X = (ln K, ln T, ln p), x the incipient phase and y the feed. Each is solved on the curve (see
+    ``_solve_on_stretch``), so that near the critical point no point is the trivial solution or one of
+    the other branch."""
+    env = mixture_envelope(fluid)
+    nc = len(fluid.x)
+    spec = nc if T is not None else nc + 1
+    val = float(np.log(T if T is not None else p))
+    nodes = _curve_nodes(env, nc)
+    out = []
+    for (a, ba), (b, bb) in zip(nodes[:-1], nodes[1:]):
+        br = ba if ba != "critical" else bb
+        if "critical" in (ba, bb) and (a if ba == "critical" else b)[spec] == val:
+            if branch is None and ba == "critical":  # exactly at the critical point: one point, K = 1
+                out.append(("critical", a, list(fluid.x), list(fluid.x), None, None, 0))
+            continue
+        if branch is not None and br != branch:
+            continue
+        if not ((a[spec] - val) * (b[spec] - val) <= 0 and a[spec] != b[spec]):
+            continue
+        # incipient-phase labels: on the dew branch the feed is vapour, on the bubble branch liquid
+        lab = ("vap", "liq") if br == "dew" else ("liq", "vap")
+        sol = _solve_on_stretch(fluid, a, b, lab, spec, val)
+        if sol is not None and not any(max(abs(u - w) for u, w in zip(sol[0], q[1])) < 1e-9 for q in out):
+            out.append((br,) + tuple(sol))  # (a traced node exactly at val ends one stretch and starts the next)
+    return out
+
+
 def saturation_point(fluid, kind, T=None, p=None) -> SaturationPoint:
     """Bubble ('bubble') or dew ('dew') point of the feed at T [K] or p [Pa].
 
-    Started from the traced envelope (interpolated on the requested branch), then Newton in
-    (ln K, ln T, ln p) to max residual 1e-12. At a temperature with two dew points (retrograde
-    region) the lower-pressure one is returned; at a pressure with two, the first along the curve.
+    Started from the traced envelope (the stretch of the requested branch that brackets T or p, the
+    critical point being the end of both branches), then Newton in (ln K, ln T, ln p) to max residual
+    1e-12; near the critical point the stretch is followed as a curve (ln K specified) first, so the
+    answer is never the trivial solution or a point of the other branch (closer to the critical point
+    than the envelope's innermost points allow, within about 1e-3 K or 1e-5 relative in p of it,
+    ConvergenceError is raised rather than a doubtful answer returned). At a temperature with two dew
+    points (retrograde region) the lower-pressure one is returned; at a pressure with two, the first
+    along the curve.
 
     Raises
     ------
     ModelRangeError
         The branch does not reach this T or p (e.g. above the cricondentherm or cricondenbar).
+    ConvergenceError
+        No bracketing stretch of the branch could be solved.
     """
     if (T is None) == (p is None):
         raise InputError(f"give either T or p for the {kind} point", f"{kind}_point")
     env = mixture_envelope(fluid)
     nc = len(fluid.x)
+    want = "bubble" if kind == "bubble" else "dew"
     spec = nc if T is not None else nc + 1
     val = float(np.log(T if T is not None else p))
-    want = "bubble" if kind == "bubble" else "dew"
-    Xs = np.column_stack([env.lnK, np.log(env.T), np.log(env.p)])
-    def bracket(branch_name, flip):
-        out = []
-        for i in range(len(Xs) - 1):
-            if env.branch[i] != branch_name and env.branch[i + 1] != branch_name:
-                continue
-            a, b = Xs[i, spec], Xs[i + 1, spec]
-            if (a - val) * (b - val) <= 0 and a != b:
-                X = Xs[i] + (val - a) / (b - a) * (Xs[i + 1] - Xs[i])
-                if flip:
-                    X = X.copy()
-                    X[:nc] = -X[:nc]
-                out.append(X)
-        return out
-
-    cands = bracket(want, False)
-    if not cands and not env.closed:
+    branches = [want]
+    if not (env.branch == want).any() and not env.closed:
         # the branch was not traced (open envelope, e.g. a near-pure feed): start from the other branch
-        cands = bracket("dew" if want == "bubble" else "bubble", True)
-    if not cands:
+        branches.append("dew" if want == "bubble" else "bubble")
+    nodes = _curve_nodes(env, nc)
+    spans = [(a[spec], b[spec]) for (a, ba), (b, bb) in zip(nodes[:-1], nodes[1:])
+             if want in (ba, bb) or (len(branches) > 1 and ba != "critical" and bb != "critical")]
+    if not any((u - val) * (w - val) <= 0 and u != w for u, w in spans):
         rng = env.T if T is not None else env.p
         what = f"T = {T:.3f} K" if T is not None else f"p = {p / 1e5:.4f} bar"
         raise ModelRangeError(f"{fluid!r} has no {kind} point at {what}: the traced {kind} branch spans "
                               f"{'T' if T is not None else 'p'} = {_span(rng[env.branch == want])} "
                               f"({'K' if T is not None else 'Pa'}).")
+    sols = []
+    for br in branches:
+        sols = envelope_points_at(fluid, T=T, p=p, branch=br)
+        if br != want:  # traced as the other branch: the roles of feed and incipient phase swap
+            sols = []
+        if sols:
+            break
+    if not sols and len(branches) > 1:
+        sols = _flipped_start(fluid, env, want, spec, val)
+    if not sols:
+        raise ConvergenceError(f"{kind} point of {fluid!r} at {'T' if T is not None else 'p'} = "
+                               f"{T if T is not None else p:.6g} did not converge on the traced envelope",
+                               SolverReport(False, 0, float("nan"), "Newton (ln K, ln T, ln p) on the envelope"))
     if T is not None and want == "dew":
-        cands.sort(key=lambda X: X[nc + 1])
-    X0 = cands[0]
-    fr, wr = ("liq", "vap") if want == "bubble" else ("vap", "liq")
-    X, x, y, rx, ry, it = solve_sat_point(fluid.model, fluid.x, X0, spec, val, False, fr, wr, max_iter=40)
+        sols.sort(key=lambda q: q[1][nc + 1])
+    _, X, x, y, rx, ry, it = sols[0]
     Ts, ps = float(np.exp(X[nc])), float(np.exp(X[nc + 1]))
     # y is the feed, x the incipient phase
-    feed, inc, rf, ri = y, x, ry, rx
+    feed, inc, rf, ri = np.array(y), np.array(x), ry, rx
     liq = (feed, rf) if want == "bubble" else (inc, ri)
     vap = (inc, ri) if want == "bubble" else (feed, rf)
     mk = lambda xx, rr, code: State(fluid.model, fluid.ideal, fluid.M_i, np.asarray(Ts), np.asarray(rr),  # noqa: E731
                                     np.asarray(xx), np.asarray(code))
     return SaturationPoint(Ts, ps, mk(liq[0], liq[1], LIQUID), mk(vap[0], vap[1], GAS), kind,
                            SolverReport(True, it, 0.0, "Newton (ln K, ln T, ln p) from the traced envelope"))
+
+
+def _flipped_start(fluid, env, want, spec, val):
+    """Open envelope with only the other branch traced: start from its points with ln K mirrored."""
+    nc = len(fluid.x)
+    other = "dew" if want == "bubble" else "bubble"
+    Xs = np.column_stack([env.lnK, np.log(env.T), np.log(env.p)])
+    fr, wr = ("liq", "vap") if want == "bubble" else ("vap", "liq")
+    out = []
+    for i in range(len(Xs) - 1):
+        if env.branch[i] != other and env.branch[i + 1] != other:
+            continue
+        a, b = Xs[i, spec], Xs[i + 1, spec]
+        if (a - val) * (b - val) <= 0 and a != b:
+            X0 = Xs[i] + (val - a) / (b - a) * (Xs[i + 1] - Xs[i])
+            X0[:nc] = -X0[:nc]
+            try:
+                X, x, y, rx, ry, it = solve_sat_point(fluid.model, fluid.x, X0, spec, val, False, fr, wr, max_iter=40)
+            except ConvergenceError:
+                continue
+            out.append((want, X.tolist(), x.tolist(), y.tolist(), rx, ry, it))
+    return out
 
 
 @dataclass(frozen=True)

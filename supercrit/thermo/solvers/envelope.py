@@ -253,13 +253,90 @@ def trace_envelope(model, z, Tc, pc, omega, T_min, p_max=1.0e8, max_points=600, 
         X, dX = Xn, dXn
     else:
         reason = f"stopped after {max_points} points without reaching the lower temperature bound"
+    extra = {}
+    ref_c = None
+    if crit_index is not None and 0 < crit_index < len(pts):
+        pts, branch, crit_index, crit, ref_c, crit_rho = _near_critical(model, zl, pts, branch, crit_index, crit)
+        if crit_rho is not None:
+            extra["critical_rho"] = crit_rho
     Xs = np.array([q[0] for q in pts])
     T, P = np.exp(Xs[:, iT]), np.exp(Xs[:, iP])
-    cb = _refine_extremum(model, z, pts, branch, iP, iT, crit_index)
-    ct = _refine_extremum(model, z, pts, branch, iT, iP, crit_index)
+    nodes = [q[0] for q in pts]
+    labels = [_labels(b == "bubble") for b in branch]
+    if ref_c is not None:  # the critical point is a point of the curve (ln K = 0), between the branches
+        nodes.insert(crit_index, [0.0] * nc + [math.log(crit.T), math.log(crit.p)])
+        labels.insert(crit_index, None)
+    cb = _refine_extremum(model, zl, nodes, labels, iP, ref_c)
+    ct = _refine_extremum(model, zl, nodes, labels, iT, ref_c)
     rep = SolverReport(closed, total_it, 0.0, f"Michelsen continuation, {len(pts)} points")
     return Envelope(T, P, np.array(branch), Xs[:, :nc], np.array([q[1] for q in pts]),
-                    np.array([q[2] for q in pts]), crit, cb, ct, closed, reason, rep, crit_index)
+                    np.array([q[2] for q in pts]), crit, cb, ct, closed, reason, rep, crit_index, extra)
+
+
+NEAR_CRITICAL_FRACTIONS = (0.5, 0.25, 0.1, 0.03, 0.01)  # [-] of the last ln K before the critical point
+                                                            # at which extra points are solved (speed/accuracy setting)
+
+
+def _near_critical(model, z, pts, branch, ci, crit):
+    """Fill the gap the trace jumps across at the critical point, and locate the critical point in it.
+
+    The trace steps over the critical point (ln K mirrored), leaving a gap between its last dew and
+    first bubble points where bubble/dew points and the cricondenbar or cricondentherm may lie. Here the
+    curve is solved with the ln K that changes most across the gap (ln K_r) specified at fractions
+    ``NEAR_CRITICAL_FRACTIONS`` of its value at the two gap ends: with ln K_r fixed away from zero the
+    trivial solution (K = 1) is excluded by construction. Starts are the linear interpolation in ln K_r
+    between the gap end and the critical estimate (near the critical point ln K varies linearly, T and
+    p slowly). The critical point is then the Hermite interpolation in ln K_r between the innermost
+    points, refined by Heidemann-Khalil where that agrees (within 0.01 K and 1e-4 relative in p).
+
+    Returns (pts, branch, crit_index, crit, r, rho_c) with the points inserted in curve order; r is
+    the index of ln K_r and rho_c the critical density [mol m-3] (None without Heidemann-Khalil).
+    """
+    from .critical import critical_point_hk
+
+    nc = len(z)
+    iT, iP = nc, nc + 1
+    Xa, Xb = pts[ci - 1][0], pts[ci][0]
+    r = max(range(nc), key=lambda i: abs(Xa[i] - Xb[i]))
+    Xc = [0.0] * nc + [math.log(crit.T), math.log(crit.p)]
+
+    def side(Xe, crossed, fractions):
+        fr, wr = _labels(crossed)
+        out = []
+        for f in fractions:
+            guess = [c + f * (e - c) for c, e in zip(Xc, Xe)]
+            try:
+                Xn, _, _, rx, ry, _ = _solve_sat_lists(model, z, guess, r, guess[r], False, fr, wr, tol=1e-11,
+                                                       max_iter=20, max_step=0.5)[:6]
+            except ConvergenceError:
+                continue
+            # the point must lie on this branch between the gap end and the critical point: ln K of the
+            # same signs as at the gap end, T and p no further from the critical estimate than there
+            if any(abs(e) > 1e-9 and _sign(v) != _sign(e) for v, e in zip(Xn[:nc], Xe[:nc])):
+                continue
+            if abs(Xn[iT] - Xc[iT]) > 2.0 * abs(Xe[iT] - Xc[iT]) + 1e-4 or \
+                    abs(Xn[iP] - Xc[iP]) > 2.0 * abs(Xe[iP] - Xc[iP]) + 1e-4:
+                continue
+            out.append((Xn, ry, rx))
+        return out
+
+    dew = side(Xa, False, NEAR_CRITICAL_FRACTIONS)
+    bub = side(Xb, True, NEAR_CRITICAL_FRACTIONS)
+    rho_c = None
+    if dew and bub:
+        X0, X1 = dew[-1][0], bub[-1][0]  # tangents evaluated at the two points themselves
+        d0 = _sens(_sat_lists(model, z, X0, False, *_labels(False))[1], r)
+        d1 = _sens(_sat_lists(model, z, X1, False, *_labels(True))[1], r)
+        crit = _hermite_critical(X0, d0, X1, d1, r, iT, iP)
+        try:
+            Th, ph, rho_h, _ = critical_point_hk(model, np.asarray(z), crit.T, crit.p)
+            if abs(Th - crit.T) < 0.01 and abs(ph / crit.p - 1.0) < 1e-4:
+                crit, rho_c = EnvelopePoint(float(Th), float(ph)), float(rho_h)
+        except ConvergenceError:
+            pass
+    new = pts[:ci] + dew + bub[::-1] + pts[ci:]
+    new_branch = branch[:ci] + ["dew"] * len(dew) + ["bubble"] * len(bub) + branch[ci:]
+    return new, new_branch, ci + len(dew), crit, r, rho_c
 
 
 def _start_dew(model, z, T0, Tc, pc, omega):
@@ -305,43 +382,54 @@ def _hermite_critical(X0, d0, X1, d1, ref, iT, iP):
     return EnvelopePoint(float(np.exp(out[0])), float(np.exp(out[1])))
 
 
-def _refine_extremum(model, z, pts, branch, i_max, i_par, crit_index):
-    """Maximum of X[i_max] along the curve, refined by a bounded search in X[i_par] around the best point.
+def _refine_extremum(model, z, nodes, labels, i_max, ref_c):
+    """Maximum of X[i_max] (ln p: cricondenbar; ln T: cricondentherm) along the curve.
 
-    Each trial point is solved from the linear interpolation of the neighbouring traced points, so the
-    search cannot jump to the other branch.
+    ``nodes`` are the curve's points in order (lists X), the critical point among them (``labels`` None
+    there, ln K = 0) so that the maximum is never below it. Around the best node the curve is searched
+    on each neighbouring stretch by a bounded 1-D search in the variable that changes most along that
+    stretch (other than X[i_max], which folds at the maximum); on a stretch ending at the critical point
+    that is ln K_``ref_c``, kept away from 0 (where K = 1 solves the equations for any T, p). Each trial
+    point is solved from the linear interpolation of the stretch's ends, with the stretch's phase labels,
+    so the search cannot jump to the other branch or onto the trivial solution.
     """
     nc = len(z)
-    Xs = np.array([q[0] for q in pts])
-    k = int(np.argmax(Xs[:, i_max]))
-    if k == 0 or k == len(pts) - 1:
-        return EnvelopePoint(float(np.exp(Xs[k, nc])), float(np.exp(Xs[k, nc + 1])))
-    ref = int(np.argmax(np.abs(Xs[0, :nc])))
-    sign0 = np.sign(Xs[0, ref])
-    seg = Xs[k - 1:k + 2]
-    order = np.argsort(seg[:, i_par])
-    seg = seg[order].tolist()
-    lo, hi = seg[0][i_par], seg[-1][i_par]
-    if hi - lo < 1e-14:
-        return EnvelopePoint(float(np.exp(Xs[k, nc])), float(np.exp(Xs[k, nc + 1])))
-    zl = z.tolist()
-    found = {}
+    k = max(range(len(nodes)), key=lambda i: nodes[i][i_max])
+    best = nodes[k]
+    for j in (k - 1, k + 1):
+        if not 0 <= j < len(nodes):
+            continue
+        a, b = nodes[k], nodes[j]
+        lab = labels[k] or labels[j]
+        if lab is None:
+            continue
+        if labels[k] is None or labels[j] is None:  # stretch ending at the critical point
+            par = ref_c
+            far = b if labels[k] is None else a
+            lo, hi = sorted((far[par], 1e-6 * far[par]))
+        else:
+            par = max((i for i in range(nc + 2) if i != i_max), key=lambda i: abs(a[i] - b[i]))
+            lo, hi = sorted((a[par], b[par]))
+        if not hi - lo > 1e-14:
+            continue
+        found = {}
 
-    def neg(val):
-        j = 0 if val <= seg[1][i_par] else 1
-        a, b = seg[j], seg[j + 1]
-        t = (val - a[i_par]) / (b[i_par] - a[i_par]) if b[i_par] != a[i_par] else 0.0
-        Xg = [u + t * (v - u) for u, v in zip(a, b)]
-        fr, wr = _labels(np.sign(Xg[ref]) != sign0)
-        try:
-            Xn, *_ = _solve_sat_lists(model, zl, Xg, i_par, float(val), False, fr, wr, max_iter=30, max_step=0.5)
-        except ConvergenceError:
-            return -Xs[k, i_max] + 1.0
-        found[float(val)] = Xn
-        return -Xn[i_max]
+        def neg(val, a=a, b=b, par=par, lab=lab, found=found):
+            t = (val - a[par]) / (b[par] - a[par])
+            Xg = [u + t * (v - u) for u, v in zip(a, b)]
+            try:
+                Xn, *_ = _solve_sat_lists(model, z, Xg, par, float(val), False, lab[0], lab[1], max_iter=30,
+                                          max_step=0.5)
+            except ConvergenceError:
+                return -best[i_max] + 1.0
+            big = max(range(nc), key=lambda i: abs(Xg[i]))
+            if max([abs(v) for v in Xn[:nc]]) < 1e-9 or _sign(Xn[big]) != _sign(Xg[big]):
+                return -best[i_max] + 1.0  # trivial or other-branch solution: not a point of this stretch
+            found[float(val)] = Xn
+            return -Xn[i_max]
 
-    res = minimize_scalar(neg, bounds=(lo, hi), method="bounded", options={"xatol": 1e-11})
-    Xb = found.get(float(res.x))
-    if Xb is None or Xb[i_max] < Xs[k, i_max]:
-        Xb = Xs[k]
-    return EnvelopePoint(float(np.exp(Xb[nc])), float(np.exp(Xb[nc + 1])))
+        res = minimize_scalar(neg, bounds=(lo, hi), method="bounded", options={"xatol": 1e-11})
+        Xb = found.get(float(res.x))
+        if Xb is not None and Xb[i_max] > best[i_max]:
+            best = Xb
+    return EnvelopePoint(float(math.exp(best[nc])), float(math.exp(best[nc + 1])))

@@ -238,23 +238,63 @@ def _newton_split(kern, z, p, lnK, idx, max_newton, it, method, strict, beta0=0.
                  for bi, Wi, Pyi, Pxi, row in zip(b, W, Py, Px, aij)]
         else:
             H = [[(dny[i][j] - 1.0) * iV + (dnx[i][j] - 1.0) * iL for j in idx] for i in idx]
-        for a, i in enumerate(idx):
-            H[a][a] += z[i] / (v[i] * l[i])
-        try:
-            dv = solve_dense(H, [-q for q in g])
-        except ZeroDivisionError:
-            return None
+        D = [z[i] / (v[i] * l[i]) for i in idx]
+        for a in range(m):
+            H[a][a] += D[a]
+        if not strict:
+            # near the critical point the Gibbs surface is not convex between the start and the solution
+            # (and very flat): Newton on the raw Hessian then heads for a saddle or the edge 0 < v < z.
+            # Here the Hessian, scaled by its ideal part D, has its eigenvalues replaced by their absolute
+            # values (floored at 1e-8 of the largest), so every step lowers G and a flat, non-convex valley
+            # is crossed in a few long steps; steps are accepted only if G decreases (Armijo). Near the
+            # solution H is positive definite and this is Newton's method (Michelsen & Mollerup 2007,
+            # ch. 10: second-order Gibbs-energy minimisation; absolute-eigenvalue modification:
+            # Nocedal & Wright, Numerical Optimization (2nd ed., 2006), sec. 3.4)
+            G0 = _gibbs_split(v, l, y, x, lpy, lpx, idx)
+            sd = [1.0 / math.sqrt(d) for d in D]
+            lam, Q = np.linalg.eigh(np.array(H) * np.outer(sd, sd))
+            if not np.all(np.isfinite(lam)):
+                return None
+            lam = np.maximum(np.abs(lam), 1e-8 * float(np.max(np.abs(lam))))
+            gs = np.array(g) * sd
+            dv = ((Q @ ((Q.T @ -gs) / lam)) * sd).tolist()
+        else:
+            try:
+                dv = solve_dense(H, [-q for q in g])
+            except ZeroDivisionError:
+                return None
         # keep 0 < v < z
         s = 1.0
         for _ in range(60):
             if all(0.0 < v[i] + s * dv[a] < z[i] for a, i in enumerate(idx)):
                 break
             s *= 0.5
+        if not strict:  # backtrack until G decreases (Armijo, slope g.dv < 0 for positive-definite H)
+            slope = sum([ga * da for ga, da in zip(g, dv)])
+            for _ in range(40):
+                vt = v[:]
+                for a in range(m):
+                    vt[idx[a]] += s * dv[a]
+                lt = [zi - vi for zi, vi in zip(z, vt)]
+                Vt, Lt = sum(vt), sum(lt)
+                yt, xt = [q / Vt for q in vt], [q / Lt for q in lt]
+                Gt = _gibbs_split(vt, lt, yt, xt, ln_phi(yt, p, "stable")[0], ln_phi(xt, p, "stable")[0], idx)
+                if Gt <= G0 + 1e-4 * s * slope or abs(Gt - G0) <= 1e-15 * (abs(G0) + 1.0):
+                    break
+                s *= 0.5
+            else:
+                return None
         v = v[:]
         for a in range(m):
             v[idx[a]] += s * dv[a]
         cheap = err < 1e-6 and s == 1.0
     return None
+
+
+def _gibbs_split(v, l, y, x, lpy, lpx, idx):
+    """G/RT of the split [-]: sum_i v_i (ln y_i + ln phi_i^V) + l_i (ln x_i + ln phi_i^L) over the present components."""
+    log = math.log
+    return sum([v[i] * (log(y[i]) + lpy[i]) + l[i] * (log(x[i]) + lpx[i]) for i in idx])
 
 
 def _split_out(z, V, x, y, lpx, lpy, Zx, Zy, it, method):
