@@ -265,6 +265,10 @@ def _curve_nodes(env, nc):
     if env.critical is not None and env.critical_index is not None and 0 < env.critical_index < len(nodes):
         nodes.insert(env.critical_index, ([0.0] * nc + [float(np.log(env.critical.T)), float(np.log(env.critical.p))],
                                           "critical"))
+    n_traced, extremes = env.extra.get("extremum_nodes", (None, ()))
+    if n_traced == len(nodes):  # the refined cricondenbar/-therm split the stretches they lie in
+        for pos, _, X, br in sorted(extremes, key=lambda e: (e[0], e[1]), reverse=True):
+            nodes.insert(pos, ([float(v) for v in X], br))
     return nodes
 
 

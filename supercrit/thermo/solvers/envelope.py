@@ -266,8 +266,11 @@ def trace_envelope(model, z, Tc, pc, omega, T_min, p_max=1.0e8, max_points=600, 
     if ref_c is not None:  # the critical point is a point of the curve (ln K = 0), between the branches
         nodes.insert(crit_index, [0.0] * nc + [math.log(crit.T), math.log(crit.p)])
         labels.insert(crit_index, None)
-    cb = _refine_extremum(model, zl, nodes, labels, iP, ref_c)
-    ct = _refine_extremum(model, zl, nodes, labels, iT, ref_c)
+    cb, cb_node = _refine_extremum(model, zl, nodes, labels, iP, ref_c)
+    ct, ct_node = _refine_extremum(model, zl, nodes, labels, iT, ref_c)
+    # the refined extrema as curve nodes (where they lie inside a stretch): a stretch that folds in T or p
+    # (the cricondentherm, the cricondenbar) is split there, so every point at a given T or p is bracketed
+    extra["extremum_nodes"] = (len(nodes), tuple(n for n in (cb_node, ct_node) if n is not None))
     rep = SolverReport(closed, total_it, 0.0, f"Michelsen continuation, {len(pts)} points")
     return Envelope(T, P, np.array(branch), Xs[:, :nc], np.array([q[1] for q in pts]),
                     np.array([q[2] for q in pts]), crit, cb, ct, closed, reason, rep, crit_index, extra)
@@ -392,10 +395,14 @@ def _refine_extremum(model, z, nodes, labels, i_max, ref_c):
     that is ln K_``ref_c``, kept away from 0 (where K = 1 solves the equations for any T, p). Each trial
     point is solved from the linear interpolation of the stretch's ends, with the stretch's phase labels,
     so the search cannot jump to the other branch or onto the trivial solution.
+
+    Returns (EnvelopePoint, node): node is None where the maximum is a traced node, else
+    (insert position in ``nodes``, fraction along that stretch, X, branch name).
     """
     nc = len(z)
     k = max(range(len(nodes)), key=lambda i: nodes[i][i_max])
     best = nodes[k]
+    node = None  # (insert position in nodes, fraction along that stretch, X, branch) of a refined maximum
     for j in (k - 1, k + 1):
         if not 0 <= j < len(nodes):
             continue
@@ -432,4 +439,6 @@ def _refine_extremum(model, z, nodes, labels, i_max, ref_c):
         Xb = found.get(float(res.x))
         if Xb is not None and Xb[i_max] > best[i_max]:
             best = Xb
-    return EnvelopePoint(float(math.exp(best[nc])), float(math.exp(best[nc + 1])))
+            t = (float(res.x) - a[par]) / (b[par] - a[par])  # position along the stretch k -> j
+            node = (max(k, j), t if j > k else 1.0 - t, list(Xb), "bubble" if lab == _labels(True) else "dew")
+    return EnvelopePoint(float(math.exp(best[nc])), float(math.exp(best[nc + 1]))), node
