@@ -251,6 +251,48 @@ class Fluid:
                          f"got {sorted(given) or 'none'}", "state")
 
     def _state_Tp(self, T, p):
+        # one state of a pure cubic-model fluid: a lean path on Python floats (the same root choice and
+        # property formulas as the general path, tests/thermo/test_single_state_path.py); it hands every
+        # state it cannot finish (bad input, out of range, no root, domain error) to the general path
+        lean = self.__dict__.get("_lean_Tp")
+        if lean is None or lean[0] is not self.x:  # set up once per composition
+            from .properties import _all_properties_scalar
+            from .solvers.density import _stable_density_derivs_scalar
+
+            ok = (self._crit is not None and hasattr(self.model, "density_roots_scalar")
+                  and hasattr(self.model, "alphar_derivs_scalar") and hasattr(self.ideal, "all_R_scalar"))
+            c = self._crit
+            lean = self.__dict__["_lean_Tp"] = (
+                self.x, ok, tuple(self.x.tolist()), tuple(self.M_i.tolist()),
+                State._single_phase_template(self.model, self.ideal, self.M_i, self._xb(()),
+                                             float(self.x @ self.M_i), float(self.model.R(self.x))) if ok else None,
+                (float(c.T), float(c.p), float(c.rho)) if ok else None,
+                _stable_density_derivs_scalar, _all_properties_scalar)
+        _, ok, xt, Mt, template, crit, stable_root, properties = lean
+        if ok:
+            Tf = None
+            try:
+                if isinstance(T, (float, int)) and isinstance(p, (float, int)):
+                    Tf, pf = float(T), float(p)
+                elif np.ndim(T) == 0 and np.ndim(p) == 0:
+                    Tf, pf = float(T), float(p)
+            except (TypeError, ValueError, OverflowError):
+                Tf = None
+            lims = self.__dict__.get("_T_lims")
+            if lims is None:
+                lims = self.__dict__["_T_lims"] = self._T_limits()
+            # the checks of check_Tp and _check_T (NaN fails every comparison)
+            if Tf is not None and lims[0] <= Tf <= lims[1] and 0.0 < pf < np.inf:
+                r = stable_root(self.model, Tf, pf, xt)
+                if r is not None:
+                    rho, d = r
+                    try:
+                        props = properties(self.model, self.ideal, Mt, Tf, rho, xt, d, False)
+                    except (ArithmeticError, ValueError):
+                        props = None  # the State's own (array) evaluation decides
+                    cT, cp, crho = crit  # the rule of _label for one pure-fluid state
+                    code = (SUPERCRITICAL if pf >= cp else GAS) if Tf >= cT else (LIQUID if rho > crho else GAS)
+                    return State._single_phase(template, Tf, rho, code, props)
         T, p = np.broadcast_arrays(np.asarray(T, dtype=float), np.asarray(p, dtype=float))
         check_Tp(T, p)
         self._check_T(T)

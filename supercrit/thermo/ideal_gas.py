@@ -78,58 +78,99 @@ class IdealGasParts:
         return self.c0 * np.log(T)[..., None] + pe + pw
 
     def all_R(self, T):
-        """(cp0/R, (h0 - h0_ref)/R [K], (s0 - s0_ref)/R) per component, sharing one set of exponentials."""
+        """(cp0/R, (h0 - h0_ref)/R [K], (s0 - s0_ref)/R) per component, sharing one set of exponentials.
+
+        One Planck-Einstein term at a time on (..., nc) arrays, summed in term order (as
+        :meth:`all_R_scalar`), with the buffers reused in place."""
         T = np.asarray(T, dtype=float)
-        u = self._u(T)
-        em1 = np.expm1(u)
-        cp = self.c0 + np.sum(self.pe_n * u * u * (em1 + 1.0) / (em1 * em1), axis=-1)
-        H = self.c0 * T[..., None] + np.sum(self.pe_n * self.pe_theta / em1, axis=-1)
-        S = self.c0 * np.log(T)[..., None] + np.sum(self.pe_n * (u / em1 - np.log(-np.expm1(-u))), axis=-1)
+        Tb = T[..., None]
+        cp = H = S = None
+        for k in range(self.pe_n.shape[1]):
+            n, th = self.pe_n[:, k], self.pe_theta[:, k]
+            u = th / Tb
+            em1 = np.expm1(u)
+            t = n * u  # cp term n u^2 (em1 + 1)/em1^2, in that order of operations
+            t *= u
+            w = em1 + 1.0
+            t *= w
+            np.multiply(em1, em1, out=w)
+            t /= w
+            tH = np.divide(n * th, em1)
+            np.negative(u, out=w)
+            np.expm1(w, out=w)
+            np.negative(w, out=w)
+            np.log(w, out=w)  # ln(1 - e^-u), overflow-safe
+            np.divide(u, em1, out=u)
+            u -= w
+            u *= n
+            if cp is None:
+                cp, H, S = t, tH, u
+            else:
+                cp += t
+                H += tH
+                S += u
+        cp = self.c0 + cp
+        H = self.c0 * Tb + H
+        S = self.c0 * np.log(T)[..., None] + S
         if self._has_power:  # power terms (N2 only among the packaged components)
             Tb = T[..., None, None]
             tr = (self.pw_Tred / Tb) ** self.pw_t
             cp = cp + np.sum(-self.pw_n * self.pw_t * (self.pw_t - 1) * tr, axis=-1)
             H = H + np.sum(self.pw_n * self.pw_t * tr * Tb, axis=-1)
             S = S + np.sum(self.pw_n * (self.pw_t - 1) * tr, axis=-1)
-        return cp, H - self._H_ref, S - self._S_ref
+        H -= self._H_ref
+        S -= self._S_ref
+        return cp, H, S
 
     @functools.cached_property
     def _has_power(self) -> bool:
         return bool(np.any(self.pw_n != 0.0))
 
     def all_R_scalar(self, T: float):
-        """:meth:`all_R` for one temperature, as lists of Python floats (same terms in the same order)."""
+        """:meth:`all_R` for one temperature, as lists of Python floats (same terms in the same order;
+        power terms with a zero coefficient - the padding - are left out, as adding a signed zero
+        changes no sum)."""
         memo = self.__dict__.get("_all_R_memo")
         if memo is not None and memo[0] == T:
             return memo[1]
         rows = self.__dict__.get("_scalar_rows")
         if rows is None:
-            rows = [(float(self.c0[i]), list(zip(self.pe_n[i].tolist(), self.pe_theta[i].tolist())),
-                     list(zip(self.pw_n[i].tolist(), self.pw_t[i].tolist(), self.pw_Tred[i].tolist())),
+            rows = [(float(self.c0[i]), [(n, th, n * th) for n, th in zip(self.pe_n[i].tolist(),
+                                                                         self.pe_theta[i].tolist())],
+                     [t for t in zip(self.pw_n[i].tolist(), self.pw_t[i].tolist(), self.pw_Tred[i].tolist())
+                      if t[0] != 0.0],
                      float(self._H_ref[i]), float(self._S_ref[i])) for i in range(len(self.c0))]
             object.__setattr__(self, "_scalar_rows", rows)
         lnT = math.log(T)
+        expm1, log = math.expm1, math.log
         cp, H, S = [], [], []
         for c0, pe, pw, Href, Sref in rows:
             s_cp = s_H = s_S = None
-            for n, th in pe:
+            for n, th, nth in pe:
                 u = th / T
-                em1 = math.expm1(u)
+                em1 = expm1(u)
                 t_cp = n * u * u * (em1 + 1.0) / (em1 * em1)
-                t_H = n * th / em1
-                t_S = n * (u / em1 - math.log(-math.expm1(-u)))
-                s_cp = t_cp if s_cp is None else s_cp + t_cp
-                s_H = t_H if s_H is None else s_H + t_H
-                s_S = t_S if s_S is None else s_S + t_S
+                t_H = nth / em1  # n th / em1, the product n th made once
+                t_S = n * (u / em1 - log(-expm1(-u)))
+                if s_cp is None:
+                    s_cp, s_H, s_S = t_cp, t_H, t_S
+                else:
+                    s_cp, s_H, s_S = s_cp + t_cp, s_H + t_H, s_S + t_S
+            if not pw:
+                cp.append(c0 + s_cp)
+                H.append(c0 * T + s_H - Href)
+                S.append(c0 * lnT + s_S - Sref)
+                continue
             w_cp = w_H = w_S = None
             for n, t, Tr in pw:
                 tr = (Tr / T) ** t
                 t_cp = -n * t * (t - 1) * tr
                 t_H = n * t * tr * T
                 t_S = n * (t - 1) * tr
-                w_cp = t_cp if w_cp is None else w_cp + t_cp
-                w_H = t_H if w_H is None else w_H + t_H
-                w_S = t_S if w_S is None else w_S + t_S
+                if w_cp is None:
+                    w_cp, w_H, w_S = t_cp, t_H, t_S
+                else:
+                    w_cp, w_H, w_S = w_cp + t_cp, w_H + t_H, w_S + t_S
             cp.append(c0 + s_cp + w_cp)
             H.append(c0 * T + s_H + w_H - Href)
             S.append(c0 * lnT + s_S + w_S - Sref)

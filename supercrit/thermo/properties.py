@@ -16,6 +16,12 @@ import numpy as np
 
 from .constants import P_REF
 
+# [-] states per block of a batched evaluation: a speed setting, not a numerical one (every formula
+# works element by element). Blocks keep numpy's temporaries small (64 kB of float64), so that the
+# allocator reuses them instead of mapping fresh memory and faulting it in for every operation, and
+# they stay in cache; larger batches are evaluated block by block and joined.
+BLOCK = 8192
+
 
 def pressure(model, T, rho, x):
     """Pressure [Pa]: p = rho R T (1 + A01)."""
@@ -70,6 +76,21 @@ def all_properties(model, ideal, M, T, rho, x) -> dict[str, np.ndarray]:
             return _all_properties_scalar(model, ideal, M, float(T), float(rho), tuple(x.tolist()))
         except (ArithmeticError, ValueError):
             pass  # outside the real domain (e.g. at a pole): the array path gives numpy's inf/NaN
+    shape = np.broadcast_shapes(T.shape, rho.shape, x.shape[:-1])
+    n = math.prod(shape)
+    if n > BLOCK:  # element by element the same numbers, block by block (see BLOCK)
+        nc = x.shape[-1]
+        Tf = np.broadcast_to(T, shape).reshape(-1)
+        rf = np.broadcast_to(rho, shape).reshape(-1)
+        xf = np.broadcast_to(x, shape + (nc,)).reshape(-1, nc)
+        out = None
+        for i in range(0, n, BLOCK):
+            part = all_properties(model, ideal, M, Tf[i:i + BLOCK], rf[i:i + BLOCK], xf[i:i + BLOCK])
+            if out is None:
+                out = {k: np.empty(n) for k in part}
+            for k, v in part.items():
+                out[k][i:i + BLOCK] = v
+        return {k: v.reshape(shape) for k, v in out.items()}
     d = model.alphar_derivs(T, rho, x)
     R = model.R(x)
     RT = R * T
@@ -80,13 +101,15 @@ def all_properties(model, ideal, M, T, rho, x) -> dict[str, np.ndarray]:
     cp0_i, h0_i, s0_i = ideal.all_R(T)
     cp0_R = np.sum(x * cp0_i, axis=-1)
     h0_R = np.sum(x * h0_i, axis=-1)
-    xlnx = np.sum(np.where(x > 0, x * np.log(np.where(x > 0, x, 1.0)), 0.0), axis=-1)
+    # one composition broadcast over a batch (the usual case): x ln x of that one row, broadcast
+    xr = x[(0,) * (x.ndim - 1)] if x.ndim > 1 and not any(x.strides[:-1]) else x
+    xlnx = np.sum(np.where(xr > 0, xr * np.log(np.where(xr > 0, xr, 1.0)), 0.0), axis=-1)
     s0_R = np.sum(x * s0_i, axis=-1) - np.log(rho * RT / P_REF) - xlnx
     h = R * h0_R + RT * (d.A10 + d.A01)
     s = R * s0_R + R * (d.A10 - d.A00)
     cv = R * (cp0_R - 1.0 - d.A20)
     cp = cv + T * dpdT * dpdT / (rho * rho * dpdrho)
-    Mm = x @ M
+    Mm = np.full(np.shape(x)[:-1], xr @ M)
     w = np.sqrt(np.maximum(cp / cv * dpdrho / Mm, 0.0))
     dvdT = dpdT / (rho * rho * dpdrho)
     return {
@@ -96,10 +119,12 @@ def all_properties(model, ideal, M, T, rho, x) -> dict[str, np.ndarray]:
     }
 
 
-def _all_properties_scalar(model, ideal, M, T: float, rho: float, x: tuple) -> dict:
+def _all_properties_scalar(model, ideal, M, T: float, rho: float, x: tuple, derivs=None, wrap=True) -> dict:
     """:func:`all_properties` of one state with Python floats: the same formulas term by term, without
-    numpy's per-call overhead on 0-d arrays (equal to round-off, tests/thermo/test_fast_paths.py)."""
-    A00, A10, A01, A20, A11, A02 = model.alphar_derivs_scalar(T, rho, x)
+    numpy's per-call overhead on 0-d arrays (equal to round-off, tests/thermo/test_fast_paths.py).
+    ``derivs``: the model's ``alphar_derivs_scalar(T, rho, x)`` where the caller has it already;
+    ``wrap``: values as numpy float64 (as :func:`all_properties` gives them), else Python floats."""
+    A00, A10, A01, A20, A11, A02 = model.alphar_derivs_scalar(T, rho, x) if derivs is None else derivs
     R = float(model.gas_constant)
     RT = R * T
     Z = 1.0 + A01
@@ -108,20 +133,31 @@ def _all_properties_scalar(model, ideal, M, T: float, rho: float, x: tuple) -> d
     dpdT = rho * R * (1.0 + A01 - A11)
     cp0_i, h0_i, s0_i = ideal.all_R_scalar(T)
     n = len(x)
-    cp0_R = sum(x[i] * cp0_i[i] for i in range(n))
-    h0_R = sum(x[i] * h0_i[i] for i in range(n))
-    xlnx = sum(xi * math.log(xi) if xi > 0 else 0.0 for xi in x)
-    s0_R = sum(x[i] * s0_i[i] for i in range(n)) - math.log(rho * RT / P_REF) - xlnx
+    if n == 1:  # the sums below with one term (sum([v]) == v), written out
+        x0 = x[0]
+        cp0_R, h0_R, s0x = x0 * cp0_i[0], x0 * h0_i[0], x0 * s0_i[0]
+        xlnx = x0 * math.log(x0) if x0 > 0 else 0.0
+        Mm = x0 * float(M[0])
+    else:
+        cp0_R = sum(x[i] * cp0_i[i] for i in range(n))
+        h0_R = sum(x[i] * h0_i[i] for i in range(n))
+        xlnx = sum(xi * math.log(xi) if xi > 0 else 0.0 for xi in x)
+        s0x = sum(x[i] * s0_i[i] for i in range(n))
+        Mm = sum(x[i] * float(M[i]) for i in range(n))
+    s0_R = s0x - math.log(rho * RT / P_REF) - xlnx
     h = R * h0_R + RT * (A10 + A01)
     s = R * s0_R + R * (A10 - A00)
     cv = R * (cp0_R - 1.0 - A20)
-    cp = cv + T * dpdT * dpdT / (rho * rho * dpdrho)
-    Mm = sum(x[i] * float(M[i]) for i in range(n))
+    rr_dp = rho * rho * dpdrho
+    cp = cv + T * dpdT * dpdT / rr_dp
     w = math.sqrt(max(cp / cv * dpdrho / Mm, 0.0))
-    dvdT = dpdT / (rho * rho * dpdrho)
-    f = np.float64
-    return {
-        "p": f(p), "Z": f(Z), "h": f(h), "s": f(s), "u": f(h - p / rho), "g": f(h - T * s), "cp": f(cp),
-        "cv": f(cv), "w": f(w), "mu_jt": f((T * dvdT - 1.0 / rho) / cp), "kappa_T": f(1.0 / (rho * dpdrho)),
-        "alpha_p": f(dpdT / (rho * dpdrho)), "dpdrho": f(dpdrho), "dpdT": f(dpdT), "M": f(Mm),
+    dvdT = dpdT / rr_dp
+    out = {
+        "p": p, "Z": Z, "h": h, "s": s, "u": h - p / rho, "g": h - T * s, "cp": cp, "cv": cv, "w": w,
+        "mu_jt": (T * dvdT - 1.0 / rho) / cp, "kappa_T": 1.0 / (rho * dpdrho), "alpha_p": dpdT / (rho * dpdrho),
+        "dpdrho": dpdrho, "dpdT": dpdT, "M": Mm,
     }
+    if wrap:
+        f = np.float64
+        return {k: f(v) for k, v in out.items()}
+    return out

@@ -13,6 +13,7 @@ density are averaged over solid, liquid and vapour (vapour fraction ``q_``, liqu
 """
 from __future__ import annotations
 
+import dataclasses
 import enum
 import functools
 from dataclasses import dataclass
@@ -43,6 +44,11 @@ GAS, LIQUID, SUPERCRITICAL, TWO_PHASE, SOLID_VAPOR, SOLID_LIQUID_VAPOR = range(6
 
 
 def _out(a):
+    t = type(a)
+    if t is float:
+        return a
+    if t is np.float64:
+        return float(a)
     a = np.asarray(a)
     return a.item() if a.ndim == 0 else a
 
@@ -114,6 +120,61 @@ class State:
     def _any_mixed(self) -> bool:
         return self._any_two or self._any_solid
 
+    @staticmethod
+    def _single_phase_template(model, ideal, M_i, x: np.ndarray, M=None, R=None) -> dict:
+        """What every single-phase state of one fluid shares, for :meth:`_single_phase`: the model,
+        ideal-gas part, molar masses, composition x (nc,) - shared, so pass a read-only array - and,
+        where the caller has them, ``M`` (``x @ M_i``) and ``R`` (``model.R(x)``)."""
+        d = dict(_SINGLE_PHASE_DEFAULTS)
+        d.update(model=model, ideal=ideal, M_i=M_i, x_=x)
+        if M is not None:
+            d["_Mx"] = M
+        if R is not None:
+            d["_R"] = R
+        return d
+
+    @classmethod
+    def _single_phase(cls, template: dict, T: float, rho: float, code: int, props: dict | None = None) -> "State":
+        """One single-phase state from Python floats T [K], rho [mol m-3] and an int phase code, equal to
+        ``State(model, ideal, M_i, np.asarray(T), np.asarray(rho), x, np.asarray(code))`` with the
+        rest from ``template`` (:meth:`_single_phase_template`).
+
+        Built without the dataclass ``__init__`` (one dict update instead of a frozen setattr per field),
+        with the phase flags that a general state works out with numpy filled in (one phase, no solid)
+        and ``props`` (:func:`all_properties` of this state) where the caller has them.
+        """
+        st = object.__new__(cls)
+        d = st.__dict__
+        d.update(template)
+        d["T_"], d["rho_"], d["phase_"] = np.asarray(T), np.asarray(rho), _CODE_ARRAYS[code]
+        d["_Tf"], d["_rhof"] = T, rho
+        if props is not None:
+            d["_single"] = props
+        return st
+
+    @functools.cached_property
+    def _one(self) -> bool:
+        """One state (not a batch)."""
+        return np.ndim(self.T_) == 0
+
+    @functools.cached_property
+    def _Tf(self) -> float:
+        return float(self.T_)
+
+    @functools.cached_property
+    def _rhof(self) -> float:
+        return float(self.rho_)
+
+    @functools.cached_property
+    def _Mx(self):
+        """Molar mass x @ M_i [kg mol-1] (array for a batch)."""
+        return self.x_ @ self.M_i
+
+    @functools.cached_property
+    def _R(self):
+        """The model's gas constant for this composition [J mol-1 K-1]."""
+        return self.model.R(self.x_)
+
     @functools.cached_property
     def _single(self) -> dict:
         return all_properties(self.model, self.ideal, self.M_i, self.T_, self.rho_, self.x_)
@@ -171,28 +232,32 @@ class State:
 
     @property
     def M(self):
-        return _out(self.x_ @ self.M_i)
+        return _out(self._Mx)
 
     @property
     def rho_mass(self):
-        return _out(self.rho_ * (self.x_ @ self.M_i))
+        if self._one:
+            return _out(self._rhof * self._Mx)
+        return _out(self.rho_ * self._Mx)
 
     @property
     def Z(self):
-        return _out(np.asarray(self.p) / (self.rho_ * self.model.R(self.x_) * self.T_))
+        if self._one:  # the same products in Python floats (IEEE double, as numpy's)
+            return _out(self.p / (self._rhof * float(self._R) * self._Tf))
+        return _out(np.asarray(self.p) / (self.rho_ * self._R * self.T_))
 
     h = property(lambda self: _out(self._avg("h")), doc="Molar enthalpy [J mol-1].")
     s = property(lambda self: _out(self._avg("s")), doc="Molar entropy [J mol-1 K-1].")
     u = property(lambda self: _out(self._avg("h") - np.asarray(self.p) / self.rho_), doc="Molar internal energy [J mol-1].")
     g = property(lambda self: _out(self._avg("h") - self.T_ * self._avg("s")), doc="Molar Gibbs energy [J mol-1].")
-    h_mass = property(lambda self: _out(self._avg("h") / (self.x_ @ self.M_i)), doc="[J kg-1]")
-    s_mass = property(lambda self: _out(self._avg("s") / (self.x_ @ self.M_i)), doc="[J kg-1 K-1]")
-    u_mass = property(lambda self: _out(np.asarray(self.u) / (self.x_ @ self.M_i)), doc="[J kg-1]")
-    g_mass = property(lambda self: _out(np.asarray(self.g) / (self.x_ @ self.M_i)), doc="[J kg-1]")
+    h_mass = property(lambda self: _out(self._avg("h") / self._Mx), doc="[J kg-1]")
+    s_mass = property(lambda self: _out(self._avg("s") / self._Mx), doc="[J kg-1 K-1]")
+    u_mass = property(lambda self: _out(np.asarray(self.u) / self._Mx), doc="[J kg-1]")
+    g_mass = property(lambda self: _out(np.asarray(self.g) / self._Mx), doc="[J kg-1]")
     cp = property(lambda self: self._single_only("cp"), doc="[J mol-1 K-1]")
     cv = property(lambda self: self._single_only("cv"), doc="[J mol-1 K-1]")
-    cp_mass = property(lambda self: _out(np.asarray(self.cp) / (self.x_ @ self.M_i)), doc="[J kg-1 K-1]")
-    cv_mass = property(lambda self: _out(np.asarray(self.cv) / (self.x_ @ self.M_i)), doc="[J kg-1 K-1]")
+    cp_mass = property(lambda self: _out(self.cp / self._Mx), doc="[J kg-1 K-1]")
+    cv_mass = property(lambda self: _out(self.cv / self._Mx), doc="[J kg-1 K-1]")
     w = property(lambda self: self._single_only("w"), doc="Speed of sound [m s-1].")
     mu_jt = property(lambda self: self._single_only("mu_jt"), doc="Joule-Thomson coefficient [K Pa-1].")
     kappa_T = property(lambda self: self._single_only("kappa_T"), doc="Isothermal compressibility [Pa-1].")
@@ -237,8 +302,8 @@ class State:
         f = np.asarray(self.solid_fraction, dtype=float)
         if not np.any(f):
             return _out(f)
-        M_solid = self.x_ @ self.M_i  # solid formed only from a pure fluid (pure CO2)
-        return _out(f * M_solid / (self.x_ @ self.M_i))
+        M_solid = self._Mx  # solid formed only from a pure fluid (pure CO2)
+        return _out(f * M_solid / self._Mx)
 
     @property
     def composition(self) -> dict:
@@ -270,3 +335,20 @@ class State:
             return (f"State({'/'.join(self.components)}, {self.model.name}: T={float(self.T_):.3f} K, "
                     f"p={float(self.p) / 1e5:.4f} bar, rho={float(self.rho_mass):.3f} kg/m3, phase={self.phase})")
         return f"State({'/'.join(self.components)}, {self.model.name}: batch of {np.size(self.T_)})"
+
+
+# what State._single_phase puts in a new state's __dict__ besides T, rho, x and the phase code: the
+# optional fields at their defaults, and the phase flags of one single-phase state
+_SINGLE_PHASE_DEFAULTS = {f.name: f.default for f in dataclasses.fields(State) if f.default is not dataclasses.MISSING}
+_SINGLE_PHASE_DEFAULTS.update(_one=True, _two=np.False_, _solid=np.False_, _mixed=np.False_, _any_two=False,
+                              _any_solid=False, _any_mixed=False)
+
+
+def _read_only_code(k: int) -> np.ndarray:
+    a = np.asarray(k)
+    a.flags.writeable = False
+    return a
+
+
+# phase codes of single states as read-only 0-d arrays, shared (a State is never mutated)
+_CODE_ARRAYS = tuple(_read_only_code(k) for k in range(len(PHASES)))

@@ -35,7 +35,7 @@ import math
 import numpy as np
 
 from ...errors import ConvergenceError, InputError, SupercritError
-from ..properties import dp_drho, pressure, reduced_gibbs_residual
+from ..properties import BLOCK, dp_drho, pressure, reduced_gibbs_residual
 from .result import SolverReport
 
 
@@ -93,22 +93,41 @@ def stable_density(model, T, p, x, rho_c=None):
             rho = None
         if rho is not None:
             return np.asarray(rho)
+    if hasattr(model, "density_roots"):  # closed-form roots, element by element: block by block
+        shape = np.broadcast_shapes(np.shape(T), np.shape(p), np.shape(x)[:-1])
+        n = math.prod(shape)
+        if n > BLOCK:
+            nc = np.shape(x)[-1]
+            Tf = np.broadcast_to(np.asarray(T, dtype=float), shape).reshape(-1)
+            pf = np.broadcast_to(np.asarray(p, dtype=float), shape).reshape(-1)
+            xf = np.broadcast_to(np.asarray(x, dtype=float), shape + (nc,)).reshape(-1, nc)
+            rho = np.empty(n)
+            for i in range(0, n, BLOCK):
+                rho[i:i + BLOCK] = stable_density(model, Tf[i:i + BLOCK], pf[i:i + BLOCK], xf[i:i + BLOCK], rho_c)
+            return rho.reshape(shape)
     roots = density_roots(model, T, p, x, rho_c)
     if roots.shape[-1] == 1:
         rho = roots[..., 0]
     else:
         ok = np.isfinite(roots)
-        Tb = np.broadcast_to(np.asarray(T, dtype=float)[..., None], roots.shape)
-        xb = np.broadcast_to(np.asarray(x, dtype=float)[..., None, :], roots.shape + (np.shape(x)[-1],))
-        g = np.full(roots.shape, np.inf)
-        # the Gibbs energy is needed only where more than one root was found
-        many = ok & (ok.sum(axis=-1, keepdims=True) > 1)
-        g[many] = reduced_gibbs_residual(model, Tb[many], roots[many], xb[many])
-        g[ok & ~many] = 0.0
-        # ties (exactly on the saturation line) go to the denser root
-        g = g - 1e-15 * np.arange(roots.shape[-1])
-        idx = np.argmin(g, axis=-1)
-        rho = np.take_along_axis(roots, idx[..., None], axis=-1)[..., 0]
+        nroot = ok.sum(axis=-1)
+        # roots come ascending, NaN-padded: where at most one was found it is in the first slot
+        rho = roots[..., 0].copy()
+        many = nroot > 1
+        if np.any(many):
+            # the Gibbs energy is needed only where more than one root was found
+            k = roots.shape[-1]
+            sub, oks = roots[many], ok[many]
+            Ts = np.broadcast_to(np.asarray(T, dtype=float), nroot.shape)[many]
+            xs = np.broadcast_to(np.asarray(x, dtype=float), nroot.shape + (np.shape(x)[-1],))[many]
+            Tb = np.broadcast_to(Ts[:, None], sub.shape)
+            xb = np.broadcast_to(xs[:, None, :], sub.shape + (xs.shape[-1],))
+            g = np.full(sub.shape, np.inf)
+            g[oks] = reduced_gibbs_residual(model, Tb[oks], sub[oks], xb[oks])
+            # ties (exactly on the saturation line) go to the denser root
+            g = g - 1e-15 * np.arange(k)
+            idx = np.argmin(g, axis=-1)
+            rho[many] = np.take_along_axis(sub, idx[:, None], axis=-1)[:, 0]
     if not np.all(np.isfinite(rho)):
         rep = SolverReport(False, 0, float("nan"), "density root search")
         raise ConvergenceError(f"{model.name}: no stable density root found at some (T, p)", rep)
@@ -118,27 +137,55 @@ def stable_density(model, T, p, x, rho_c=None):
 def _stable_density_scalar(model, T: float, p: float, x: tuple):
     """:func:`stable_density` of one state with the model's scalar hooks (same root filter, Gibbs choice
     and tie rule as the array path); None where the array path must decide (no root, or a domain error)."""
+    r = _stable_density_derivs_scalar(model, T, p, x)
+    return None if r is None else r[0]
+
+
+def _stable_density_derivs_scalar(model, T: float, p: float, x: tuple):
+    """(rho [mol m-3], A_ij tuple or None) of the stable root of one state, as
+    :func:`_stable_density_scalar`; the alpha_r derivatives at the chosen root are returned where the
+    Gibbs choice (or the stability check) already evaluated them, else None. None where the array path
+    must decide."""
     try:
+        if hasattr(model, "density_roots_derivs_scalar") and getattr(model, "roots_are_stable", False):
+            # the model's roots with their A_ij: the same roots, and the same Gibbs choice and tie rule
+            # as below on the same numbers, without a second evaluation at the chosen root
+            found = model.density_roots_derivs_scalar(T, p, x)
+            if len(found) == 1:
+                return found[0]
+            best, g_best = None, float("inf")
+            log1p = math.log1p
+            for k, (r, d) in enumerate(found):
+                g = (d[0] + d[2] - log1p(d[2])) - 1e-15 * k
+                if g < g_best:
+                    best, g_best = k, g
+            return None if best is None else found[best]
         roots = model.density_roots_scalar(T, p, x)
-        if len(roots) > 1:
+        derivs = [None] * len(roots)
+        if len(roots) > 1 and not getattr(model, "roots_are_stable", False):
             R = float(model.gas_constant)
             for k, r in enumerate(roots):
                 if r == r:
-                    d = model.alphar_derivs_scalar(T, r, x)
+                    d = derivs[k] = model.alphar_derivs_scalar(T, r, x)
                     if not R * T * (1.0 + 2.0 * d[2] + d[5]) > 0:
                         roots[k] = float("nan")
         ok = [k for k, r in enumerate(roots) if r == r]
         if not ok:
             return None
         if len(ok) == 1:
-            return roots[ok[0]]
+            return roots[ok[0]], derivs[ok[0]]
         best, g_best = None, float("inf")
+        log1p = math.log1p
         for k in ok:
-            d = model.alphar_derivs_scalar(T, roots[k], x)
-            g = (d[0] + d[2] - math.log1p(d[2])) - 1e-15 * k
+            d = derivs[k]
+            if d is None:
+                d = derivs[k] = model.alphar_derivs_scalar(T, roots[k], x)
+            g = (d[0] + d[2] - log1p(d[2])) - 1e-15 * k
             if g < g_best:
                 best, g_best = k, g
-        return roots[best]
+        if best is None:
+            return None
+        return roots[best], derivs[best]
     except (ArithmeticError, ValueError):
         return None
 

@@ -57,17 +57,32 @@ class SoaveAlpha:
     m: np.ndarray  # [-], shape (nc,)
 
     def q(self, T):
-        T = np.asarray(T, dtype=float)[..., None]
+        T = np.asarray(T, dtype=float)
+        if self.Tc.shape == (1,):  # one component: the same arithmetic on T's own shape (numpy is much
+            Tc, m = float(self.Tc[0]), float(self.m[0])  # slower on (..., 1) arrays), then the axis
+            sTTc = np.sqrt(T * Tc)
+            q = 1.0 + m * (1.0 - np.sqrt(T / Tc))
+            return q[..., None], (-m / (2.0 * sTTc))[..., None], (m / (4.0 * T * sTTc))[..., None]
+        T = T[..., None]
         sTTc = np.sqrt(T * self.Tc)
         q = 1.0 + self.m * (1.0 - np.sqrt(T / self.Tc))
         return q, -self.m / (2.0 * sTTc), self.m / (4.0 * T * sTTc)
 
     def q_scalar(self, T: float):
         """As :meth:`q` for one temperature, as lists of Python floats (small-nc fast path)."""
+        pairs = self.__dict__.get("_pairs")
+        if pairs is None:
+            pairs = tuple(zip(self.Tc.tolist(), self.m.tolist()))
+            object.__setattr__(self, "_pairs", pairs)
+        sqrt = _math.sqrt
+        if len(pairs) == 1:
+            Tc, m = pairs[0]
+            sTTc = sqrt(T * Tc)
+            return [1.0 + m * (1.0 - sqrt(T / Tc))], [-m / (2.0 * sTTc)], [m / (4.0 * T * sTTc)]
         q, dq, d2q = [], [], []
-        for Tc, m in zip(self.Tc.tolist(), self.m.tolist()):
-            sTTc = _math.sqrt(T * Tc)
-            q.append(1.0 + m * (1.0 - _math.sqrt(T / Tc)))
+        for Tc, m in pairs:
+            sTTc = sqrt(T * Tc)
+            q.append(1.0 + m * (1.0 - sqrt(T / Tc)))
             dq.append(-m / (2.0 * sTTc))
             d2q.append(m / (4.0 * T * sTTc))
         return q, dq, d2q

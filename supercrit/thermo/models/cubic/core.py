@@ -86,18 +86,54 @@ def _cubic_real_roots(a2, a1, a0):
     c = np.where(r1 != 0, -a0 / r1s, a1)
     disc = b * b - 4.0 * c
     real2 = disc >= 0
-    sd = np.sqrt(np.where(real2, disc, 0.0))
-    q = -0.5 * (b + np.where(b >= 0, sd, -sd))
-    qs = np.where(q != 0, q, 1.0)
-    r2 = np.where(real2 & (q != 0), q, np.where(real2, 0.0, np.nan))
-    r3 = np.where(real2 & (q != 0), c / qs, np.where(real2, 0.0, np.nan))
-    out = np.stack([r1, r2, r3], axis=-1)
-    for _ in range(2):  # Newton polish on the cubic
-        f = ((out + a2[..., None]) * out + a1[..., None]) * out + a0[..., None]
-        df = (3.0 * out + 2.0 * a2[..., None]) * out + a1[..., None]
+    r1 = _newton_polish(r1, a2, a1, a0)
+    out = np.full(r1.shape + (3,), np.nan)
+    out[..., 0] = r1
+    # the other two roots (and the sort) only where they are real; element by element the same
+    # arithmetic as on the whole array, NaN elsewhere (a NaN stays NaN through the polish)
+    if np.any(real2):
+        b, c = b[real2], c[real2]
+        sd = np.sqrt(b * b - 4.0 * c)
+        q = -0.5 * (b + np.where(b >= 0, sd, -sd))
+        qs = np.where(q != 0, q, 1.0)
+        A2, A1, A0 = a2[real2], a1[real2], a0[real2]
+        r2 = _newton_polish(np.where(q != 0, q, 0.0), A2, A1, A0)
+        r3 = _newton_polish(np.where(q != 0, c / qs, 0.0), A2, A1, A0)
+        out[real2] = np.sort(np.stack([r1[real2], r2, r3], axis=-1), axis=-1)
+    return out
+
+
+def _newton_polish(z, a2, a1, a0):
+    """Two Newton steps on z^3 + a2 z^2 + a1 z + a0 (no step where the derivative is 0 or not finite)."""
+    for _ in range(2):
+        f = ((z + a2) * z + a1) * z + a0
+        df = (3.0 * z + 2.0 * a2) * z + a1
         ok = np.isfinite(df) & (df != 0)
-        out = out - np.where(ok, f / np.where(ok, df, 1.0), 0.0)
-    return np.sort(out, axis=-1)
+        z = z - np.where(ok, f / np.where(ok, df, 1.0), 0.0)
+    return z
+
+
+_INF = float("inf")
+
+
+def _derivs_scalar(T: float, rho: float, mix: tuple, R: float) -> tuple:
+    """(A00, A10, A01, A20, A11, A02) at one (T, rho) from the mixed parameters ``mix`` of
+    :meth:`CubicModel._mix_scalar`; the formulas of :meth:`CubicModel.alphar_derivs` in Python floats."""
+    a, da, d2a, B, D1, D2 = mix[0], mix[1], mix[2], mix[3], mix[4], mix[5]
+    e1, e2 = 1.0 + D1 * rho, 1.0 + D2 * rho
+    if abs(D1 - D2) <= 1e-14 * max(abs(D1) + abs(D2), 1e-300):
+        lam = rho / e1
+    else:
+        lam = _math.log(e1 / e2) / (D1 - D2)
+    Q = e1 * e2
+    lam1 = 1.0 / Q
+    lam2 = -(D1 + D2 + 2.0 * D1 * D2 * rho) / (Q * Q)
+    Brho = B * rho
+    rep = Brho / (1.0 - Brho)
+    psi = a / (R * T)
+    g = (a - T * da) / (R * T)
+    return (-_math.log1p(-Brho) - psi * lam, -lam * g, rep - psi * rho * lam1, -lam * T * d2a / R,
+            -rho * lam1 * g, rep * rep - psi * rho * rho * lam2)
 
 
 @dataclass(frozen=True, eq=False)
@@ -158,8 +194,12 @@ class CubicModel:
         q, dq, d2q = self.alpha.q(T)
         sac = np.sqrt(self.ac)
         a, da, d2a, ai = a_mix(sac * q, sac * dq, sac * d2q, x, self._omk)
-        bm = x @ self.b
-        cm = x @ self.c
+        if x.shape[-1] == 1:  # x @ b with one component is the one product, on (...) arrays
+            bm = x[..., 0] * float(self.b[0])
+            cm = x[..., 0] * float(self.c[0])
+        else:
+            bm = x @ self.b
+            cm = x @ self.c
         B = bm - cm
         D1 = self.delta1 * bm + cm
         D2 = self.delta2 * bm + cm
@@ -244,78 +284,123 @@ class CubicModel:
         # of three real roots the middle one lies on the rising (dp/dv > 0) part of the isotherm: p(v) - p
         # is +inf at v = b and tends to -p at large v, so it changes sign - to + there; the outer two are
         # mechanically stable (hence ``roots_are_stable``)
-        three = np.all(np.isfinite(z), axis=-1)
-        z = np.where(three[..., None] & (np.arange(3) == 1), np.nan, z)
-        v = z * (RT / p)[..., None] - cm[..., None]
-        ok = (z > Bt[..., None]) & (v > 0)
-        rho = np.where(ok, 1.0 / np.where(ok, v, 1.0), np.nan)
-        return np.sort(rho, axis=-1)
+        fin = np.isfinite(z)
+        three = fin[..., 0] & fin[..., 1] & fin[..., 2]
+        k = RT / p
+        if not np.all(three | ~(fin[..., 1] | fin[..., 2])):  # not (three roots or one): generic form
+            z = np.where(three[..., None] & (np.arange(3) == 1), np.nan, z)
+            v = z * k[..., None] - cm[..., None]
+            ok = (z > Bt[..., None]) & (v > 0)
+            rho = np.where(ok, 1.0 / np.where(ok, v, 1.0), np.nan)
+            return np.sort(rho, axis=-1)
+        # the same numbers without the sort: the smallest z (liquid side) and, of three, the largest
+        # (vapour side); v = z k - cm rises with z, so the vapour root is the lighter one
+        out = np.full(z.shape, np.nan)
+        zl, zv = z[..., 0], z[..., 2]
+        vl, vv = zl * k - cm, zv * k - cm
+        okl = (zl > Bt) & (vl > 0)
+        okv = (zv > Bt) & (vv > 0)  # False where there is one root (zv NaN)
+        rl = np.where(okl, 1.0 / np.where(okl, vl, 1.0), np.nan)
+        rv = np.where(okv, 1.0 / np.where(okv, vv, 1.0), np.nan)
+        out[..., 0] = np.where(okv, rv, rl)
+        out[..., 1] = np.where(okv, rl, np.nan)
+        return out
 
     # -- scalar fast path (one state, Python floats; the same formulas as the array path) ----
     def _mix_scalar(self, T: float, x: tuple):
         """(a, da/dT, d2a/dT2, B, D1, D2, bm, cm) for one T [K] and composition x (tuple of floats);
         the last (T, x) is kept, since solvers evaluate many densities at one state's T and x."""
-        key = (T, x)
         memo = self.__dict__.get("_mix_memo")
-        if memo is not None and memo[0] == key:
-            return memo[1]
+        if memo is not None and memo[0] == T and memo[1] == x:
+            return memo[2]
         lists = self.__dict__.get("_scalar_lists")
         if lists is None:
-            lists = (np.sqrt(self.ac).tolist(), self._omk.tolist(), np.asarray(self.b, float).tolist(),
-                     np.asarray(self.c, float).tolist())
-            object.__setattr__(self, "_scalar_lists", lists)
-        sac, omk, b, c = lists
+            lists = self._scalar_consts()
+        sac, omk, b, c, d1, d2, _ = lists
         q, dq, d2q = self.alpha.q_scalar(T)
         n = len(x)
-        xQ = [x[i] * (sac[i] * q[i]) for i in range(n)]
-        xdQ = [x[i] * (sac[i] * dq[i]) for i in range(n)]
-        xd2Q = [x[i] * (sac[i] * d2q[i]) for i in range(n)]
-        KxQ = [sum(xQ[i] * omk[i][j] for i in range(n)) for j in range(n)]
-        KxdQ = [sum(xdQ[i] * omk[i][j] for i in range(n)) for j in range(n)]
-        a = sum(xQ[i] * KxQ[i] for i in range(n))
-        da = 2.0 * sum(xdQ[i] * KxQ[i] for i in range(n))
-        d2a = 2.0 * (sum(xd2Q[i] * KxQ[i] for i in range(n)) + sum(xdQ[i] * KxdQ[i] for i in range(n)))
-        bm = sum(x[i] * b[i] for i in range(n))
-        cm = sum(x[i] * c[i] for i in range(n))
-        out = (a, da, d2a, bm - cm, self.delta1 * bm + cm, self.delta2 * bm + cm, bm, cm)
-        object.__setattr__(self, "_mix_memo", (key, out))
+        if n == 1:  # the general sums below with one term each (sum([v]) == v), written out
+            x0, o = x[0], omk[0][0]
+            xQ, xdQ, xd2Q = x0 * (sac[0] * q[0]), x0 * (sac[0] * dq[0]), x0 * (sac[0] * d2q[0])
+            KxQ, KxdQ = xQ * o, xdQ * o
+            a = xQ * KxQ
+            da = 2.0 * (xdQ * KxQ)
+            d2a = 2.0 * (xd2Q * KxQ + xdQ * KxdQ)
+            bm, cm = x0 * b[0], x0 * c[0]
+        else:
+            xQ = [x[i] * (sac[i] * q[i]) for i in range(n)]
+            xdQ = [x[i] * (sac[i] * dq[i]) for i in range(n)]
+            xd2Q = [x[i] * (sac[i] * d2q[i]) for i in range(n)]
+            KxQ = [sum(xQ[i] * omk[i][j] for i in range(n)) for j in range(n)]
+            KxdQ = [sum(xdQ[i] * omk[i][j] for i in range(n)) for j in range(n)]
+            a = sum(xQ[i] * KxQ[i] for i in range(n))
+            da = 2.0 * sum(xdQ[i] * KxQ[i] for i in range(n))
+            d2a = 2.0 * (sum(xd2Q[i] * KxQ[i] for i in range(n)) + sum(xdQ[i] * KxdQ[i] for i in range(n)))
+            bm = sum(x[i] * b[i] for i in range(n))
+            cm = sum(x[i] * c[i] for i in range(n))
+        out = (a, da, d2a, bm - cm, d1 * bm + cm, d2 * bm + cm, bm, cm)
+        object.__setattr__(self, "_mix_memo", (T, x, out))
         return out
+
+    def _scalar_consts(self):
+        """Constants of the scalar path as Python floats (lists): sqrt(ac), 1 - kij, b, c, delta1, delta2, R.
+        Python floats, not numpy scalars: the same IEEE arithmetic at a third of the cost per operation."""
+        lists = (np.sqrt(self.ac).tolist(), self._omk.tolist(), np.asarray(self.b, float).tolist(),
+                 np.asarray(self.c, float).tolist(), float(self.delta1), float(self.delta2), float(self.gas_constant))
+        object.__setattr__(self, "_scalar_lists", lists)
+        return lists
 
     def alphar_derivs_scalar(self, T: float, rho: float, x: tuple) -> tuple:
         """(A00, A10, A01, A20, A11, A02) of one state as Python floats; x a tuple of floats.
 
         Same formulas as :meth:`alphar_derivs` (equal to round-off, tests/thermo/test_fast_paths.py),
         without the per-call overhead of numpy on 0-d arrays."""
-        a, da, d2a, B, D1, D2, _, _ = self._mix_scalar(T, x)
-        R = self.gas_constant
-        e1, e2 = 1.0 + D1 * rho, 1.0 + D2 * rho
-        if abs(D1 - D2) <= 1e-14 * max(abs(D1) + abs(D2), 1e-300):
-            lam = rho / e1
-        else:
-            lam = _math.log(e1 / e2) / (D1 - D2)
-        Q = e1 * e2
-        lam1 = 1.0 / Q
-        lam2 = -(D1 + D2 + 2.0 * D1 * D2 * rho) / (Q * Q)
-        Brho = B * rho
-        rep = Brho / (1.0 - Brho)
-        psi = a / (R * T)
-        g = (a - T * da) / (R * T)
-        return (-_math.log1p(-Brho) - psi * lam, -lam * g, rep - psi * rho * lam1, -lam * T * d2a / R,
-                -rho * lam1 * g, rep * rep - psi * rho * rho * lam2)
+        return _derivs_scalar(T, rho, self._mix_scalar(T, x), self._scalar_lists[6])
 
-    def density_roots_scalar(self, T: float, p: float, x: tuple) -> list:
-        """:meth:`density_roots` of one state: three slots [mol m-3], ascending, NaN-padded (Python floats)."""
-        a, _, _, _, _, _, bm, cm = self._mix_scalar(T, x)
-        RT = self.gas_constant * T
+    def _roots_scalar(self, T: float, p: float, mix: tuple, R: float) -> list:
+        """The density roots [mol m-3] of one state, ascending, without padding (see density_roots_scalar)."""
+        a, bm, cm = mix[0], mix[6], mix[7]
+        lists = self._scalar_lists
+        d1, d2 = lists[4], lists[5]
+        RT = R * T
         A, Bt = a * p / (RT * RT), bm * p / RT
-        s, P = self.delta1 + self.delta2, self.delta1 * self.delta2
+        s, P = d1 + d2, d1 * d2
         zs = _cubic_real_roots_scalar((s - 1.0) * Bt - 1.0, A + P * Bt * Bt - s * Bt * (Bt + 1.0),
                                       -(A * Bt + P * Bt * Bt * (Bt + 1.0)))
+        z0, z1, z2 = zs
+        vol = RT / p
+        if z1 == z1:  # three real roots (two finite means three); else the one real root
+            if z0 == z0 and z2 == z2 and abs(z0) < _INF and abs(z1) < _INF and abs(z2) < _INF:
+                zs = (z0, z2)  # the middle one lies on the mechanically unstable part of the isotherm
+        else:
+            zs = (z0,)
         out = []
         for z in zs:
-            v = z * (RT / p) - cm
-            out.append(1.0 / v if (z > Bt and v > 0) else _math.nan)
-        return sorted(out, key=lambda r: (r != r, r))
+            v = z * vol - cm
+            if z > Bt and v > 0:
+                out.append(1.0 / v)
+        if len(out) > 1:
+            out.sort()
+        return out
+
+    def density_roots_scalar(self, T: float, p: float, x: tuple) -> list:
+        """:meth:`density_roots` of one state: three slots [mol m-3], ascending, NaN-padded (Python floats).
+
+        As in the array path, of three real roots of the cubic the middle (mechanically unstable) one
+        is dropped before the co-volume filter."""
+        mix = self._mix_scalar(T, x)
+        out = self._roots_scalar(T, p, mix, self._scalar_lists[6])
+        while len(out) < 3:
+            out.append(_math.nan)
+        return out
+
+    def density_roots_derivs_scalar(self, T: float, p: float, x: tuple) -> list:
+        """[(rho [mol m-3], (A00, A10, A01, A20, A11, A02)), ...] for every root of
+        :meth:`density_roots_scalar`, ascending: the roots with the alpha_r derivatives at each (what the
+        stable-root choice and the properties of the chosen root need), from one mixing evaluation."""
+        mix = self._mix_scalar(T, x)
+        R = self._scalar_lists[6]
+        return [(r, _derivs_scalar(T, r, mix, R)) for r in self._roots_scalar(T, p, mix, R)]
 
     def phase_kernel(self, T) -> "CubicPhaseKernel":
         """A :class:`CubicPhaseKernel` at temperature T [K] (mixture flash, stability and envelope work).
@@ -345,7 +430,6 @@ class CubicModel:
 def _cubic_real_roots_scalar(a2: float, a1: float, a0: float) -> list:
     """:func:`_cubic_real_roots` for one cubic, step for step (same branches, deflation and polish),
     with Python floats; three slots ascending, NaN where complex."""
-    nan = _math.nan
     P = a1 - a2 * a2 / 3.0
     Q = 2.0 * a2**3 / 27.0 - a2 * a1 / 3.0 + a0
     D = (Q / 2.0) ** 2 + (P / 3.0) ** 3
@@ -361,29 +445,46 @@ def _cubic_real_roots_scalar(a2: float, a1: float, a0: float) -> list:
         r = 2.0 * _math.sqrt(-Pm / 3.0)
         arg = min(max(3.0 * Q / (Pm * r), -1.0), 1.0)
         phi = _math.acos(arg) / 3.0
-        trig = [r * _math.cos(phi - 2.0 * _math.pi * k / 3.0) + shift for k in range(3)]
-        r1 = trig[0]
-        for t in trig[1:]:
+        r1 = r * _math.cos(phi) + shift
+        for k in (1, 2):
+            t = r * _math.cos(phi - 2.0 * _math.pi * k / 3.0) + shift
             if abs(t) > abs(r1):
                 r1 = t
     b = a2 + r1
     c = -a0 / r1 if r1 != 0 else a1
     disc = b * b - 4.0 * c
+    isfinite = _math.isfinite
     if disc >= 0:
         sd = _math.sqrt(disc)
         q = -0.5 * (b + (sd if b >= 0 else -sd))
-        r2, r3 = (q, c / q) if q != 0 else (0.0, 0.0)
+        zs = (r1, q, c / q) if q != 0 else (r1, 0.0, 0.0)
     else:
-        r2 = r3 = nan
+        zs = (r1,)
     out = []
-    for z in (r1, r2, r3):
-        for _ in range(2):
-            f = ((z + a2) * z + a1) * z + a0
-            df = (3.0 * z + 2.0 * a2) * z + a1
-            if _math.isfinite(df) and df != 0:
-                z = z - f / df
+    for z in zs:  # two Newton steps on the cubic
+        df = (3.0 * z + 2.0 * a2) * z + a1
+        if isfinite(df) and df != 0:
+            z = z - (((z + a2) * z + a1) * z + a0) / df
+        df = (3.0 * z + 2.0 * a2) * z + a1
+        if isfinite(df) and df != 0:
+            z = z - (((z + a2) * z + a1) * z + a0) / df
         out.append(z)
-    return sorted(out, key=lambda z: (z != z, z))
+    if len(out) == 1:
+        return [out[0], _math.nan, _math.nan]
+    z1, z2, z3 = out
+    if z1 == z1 and z2 == z2 and z3 == z3:  # three numbers: sorted() by a stable exchange network
+        if z1 > z2:
+            z1, z2 = z2, z1
+        if z2 > z3:
+            z2, z3 = z3, z2
+        if z1 > z2:
+            z1, z2 = z2, z1
+        return [z1, z2, z3]
+    return sorted(out, key=_nan_last)
+
+
+def _nan_last(z):
+    return (z != z, z)
 
 
 def _cubic_roots_scalar(a2: float, a1: float, a0: float) -> list:

@@ -26,6 +26,14 @@ def a_mix(Q, dQ, d2Q, x, one_minus_k):
     sum_j x_j a_ij : ndarray (..., nc)
         Needed by the fugacity coefficients [Pa m6 mol-2].
     """
+    if np.shape(Q)[-1] == 1 and np.shape(x)[-1] == 1:
+        # one component: the sums below have one term each (a sum of one term is that term), written
+        # out on (...) arrays - numpy is much slower on (..., 1) arrays and 1 x 1 matrix products
+        x0, o = x[..., 0], float(one_minus_k[0, 0])
+        Q0 = Q[..., 0]
+        xQ, xdQ, xd2Q = x0 * Q0, x0 * dQ[..., 0], x0 * d2Q[..., 0]
+        KxQ, KxdQ = xQ * o, xdQ * o
+        return xQ * KxQ, 2.0 * (xdQ * KxQ), 2.0 * (xd2Q * KxQ + xdQ * KxdQ), (Q0 * KxQ)[..., None]
     xQ, xdQ, xd2Q = x * Q, x * dQ, x * d2Q
     KxQ = xQ @ one_minus_k  # sum_j (1-kij) x_j Q_j
     a = np.sum(xQ * KxQ, axis=-1)
