@@ -403,7 +403,22 @@ def _refine_extremum(model, z, nodes, labels, i_max, ref_c):
     k = max(range(len(nodes)), key=lambda i: nodes[i][i_max])
     best = nodes[k]
     node = None  # (insert position in nodes, fraction along that stretch, X, branch) of a refined maximum
-    for j in (k - 1, k + 1):
+    sides = [j for j in (k - 1, k + 1) if 0 <= j < len(nodes)]
+    if len(sides) == 2:
+        # search first the side where a parabola through the three nodes (in chord length) has its vertex;
+        # the other side only if the maximum found there is at node k (then it may lie beyond it)
+        d0 = math.dist(nodes[k - 1], nodes[k])
+        d1 = math.dist(nodes[k], nodes[k + 1])
+        y0, y1, y2 = nodes[k - 1][i_max], nodes[k][i_max], nodes[k + 1][i_max]
+        vertex = 0.0
+        if d0 > 0 and d1 > 0:  # y = a s^2 + b s + y1 through (-d0, y0), (0, y1), (d1, y2)
+            a = (d1 * (y0 - y1) + d0 * (y2 - y1)) / (d0 * d1 * (d0 + d1))
+            b = ((y2 - y1) - a * d1 * d1) / d1
+            vertex = -b / (2.0 * a) if a < 0 else 0.0
+        sides = [k - 1, k + 1] if vertex < 0 else [k + 1, k - 1]
+    for j in sides:
+        if node is not None and node[1] not in (0.0, 1.0) and min(node[1], 1.0 - node[1]) > 1e-3:
+            break  # an interior maximum on the first side searched
         if not 0 <= j < len(nodes):
             continue
         a, b = nodes[k], nodes[j]
