@@ -16,7 +16,8 @@ from ..errors import ConvergenceError, InputError, ModelRangeError
 from .properties import all_properties
 from .solvers.critical import critical_point_hk
 from .solvers.envelope import Envelope, EnvelopePoint, trace_envelope
-from .solvers.flash import FlashResult, flash_Tp, solve_sat_point
+from .solvers.flash import FlashResult, flash_Tp
+from .solvers.saturation_point import solve_sat_point
 from .solvers.result import SolverReport
 from .state import GAS, LIQUID, SUPERCRITICAL, TWO_PHASE, State
 
@@ -281,7 +282,7 @@ def _solve_on_stretch(fluid, a, b, lab, spec, val):
     stretch); otherwise (near the critical point, where the Newton start is close to the trivial
     solution or the other branch) the stretch is followed as a curve: its leading variable u is
     specified and u is solved for X[spec](u) = val by Brent's method, then Newton polishes X[spec] = val."""
-    from .solvers.flash import _solve_sat_lists
+    from .solvers.saturation_point import _solve_sat_lists
 
     nc = len(fluid.x)
     zl = fluid.x.tolist()

@@ -13,10 +13,12 @@ import numpy as np
 import pytest
 
 import supercrit.thermo.solvers.flash as flash_mod
+import supercrit.thermo.solvers.saturation_point as satpt_mod
 from supercrit import Fluid
 from supercrit.thermo.mixture import mixture_envelope
 from supercrit.thermo.models.cubic.core import CubicPhaseKernel
-from supercrit.thermo.solvers.flash import (_guards_pass, _split, flash_Tp, sat_residual, solve_sat_point)
+from supercrit.thermo.solvers.flash import _guards_pass, _split, flash_Tp
+from supercrit.thermo.solvers.saturation_point import sat_residual, solve_sat_point
 from supercrit.thermo.solvers.stability import solve_dense, solve_dense_many, stability_test, wilson_K
 
 FIVE = {"CO2": 0.96, "N2": 0.02, "O2": 0.01, "Ar": 0.005, "CH4": 0.005}
@@ -144,7 +146,7 @@ def test_saturation_newton_with_residual_checks_equals_plain_newton(monkeypatch)
     i = 10
     X0 = np.concatenate([env.lnK[i] * 1.02, [np.log(env.T[i]) + 1e-3, np.log(env.p[i])]])
     fast = solve_sat_point(f.model, f.x, X0, nc, np.log(env.T[i]), False, "vap", "liq")
-    monkeypatch.setattr(flash_mod, "CHECK_ONLY_BELOW", -1.0)  # every iteration fully evaluated
+    monkeypatch.setattr(satpt_mod, "CHECK_ONLY_BELOW", -1.0)  # every iteration fully evaluated
     plain = solve_sat_point(f.model, f.x, X0, nc, np.log(env.T[i]), False, "vap", "liq")
     assert fast[5] == plain[5]  # iterations
     np.testing.assert_array_equal(fast[0], plain[0])

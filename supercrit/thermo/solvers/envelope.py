@@ -31,7 +31,7 @@ import numpy as np
 from scipy.optimize import minimize_scalar
 
 from ...errors import ConvergenceError
-from .flash import _sat_lists, _solve_sat_lists, solve_sat_point
+from .saturation_point import _sat_lists, _solve_sat_lists, solve_sat_point
 from .result import SolverReport
 from .stability import solve_dense, wilson_K
 
