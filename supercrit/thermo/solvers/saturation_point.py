@@ -27,11 +27,9 @@ def sat_residual(model, z, X, incipient_is_y, z_root, w_root):
     return np.array(F), np.array(J), np.array(x), np.array(y), rx, ry
 
 
-def _sat_lists(model, z, X, incipient_is_y, z_root, w_root):
-    """:func:`sat_residual` on lists of Python floats (F, J as lists; x, y lists; densities floats).
-
-    Only the incipient phase's composition derivatives enter J; they are taken in factored form
-    (``dn_parts``) and J assembled in one pass."""
+def _phases(model, z, X, incipient_is_y, z_root, w_root):
+    """The two phases of a bubble/dew point at X = (ln K, ln T, ln p): (nc, T, P, K, kernel, root labels
+    rx, ry, unnormalised and normalised compositions; x and y sums Sx, Sy)."""
     nc = len(z)
     exp = math.exp
     T, P = exp(X[nc]), exp(X[nc + 1])
@@ -44,7 +42,15 @@ def _sat_lists(model, z, X, incipient_is_y, z_root, w_root):
         nx, ny = [zi / k for zi, k in zip(z, K)], z
         rx, ry = w_root, z_root
     Sx, Sy = sum(nx), sum(ny)
-    x, y = [v / Sx for v in nx], [v / Sy for v in ny]
+    return nc, T, P, K, kern, rx, ry, nx, ny, Sx, Sy, [v / Sx for v in nx], [v / Sy for v in ny]
+
+
+def _sat_lists(model, z, X, incipient_is_y, z_root, w_root):
+    """:func:`sat_residual` on lists of Python floats (F, J as lists; x, y lists; densities floats).
+
+    Only the incipient phase's composition derivatives enter J; they are taken in factored form
+    (``dn_parts``) and J assembled in one pass."""
+    nc, T, P, K, kern, rx, ry, nx, ny, Sx, Sy, x, y = _phases(model, z, X, incipient_is_y, z_root, w_root)
     w = y if incipient_is_y else x
     if kern._lists is not None:
         feed, inc, rf, ri = (x, y, rx, ry) if incipient_is_y else (y, x, ry, rx)
@@ -87,19 +93,7 @@ def solve_sat_point(model, z, X0, spec_index, spec_value, incipient_is_y, z_root
 
 def _sat_F_lists(model, z, X, incipient_is_y, z_root, w_root):
     """The residuals F of :func:`_sat_lists` alone (ln phi without derivatives), with x, y and the densities."""
-    nc = len(z)
-    exp = math.exp
-    T, P = exp(X[nc]), exp(X[nc + 1])
-    K = [exp(v) for v in X[:nc]]
-    kern = model.phase_kernel(T)
-    if incipient_is_y:
-        nx, ny = z, [k * zi for k, zi in zip(K, z)]
-        rx, ry = z_root, w_root
-    else:
-        nx, ny = [zi / k for zi, k in zip(z, K)], z
-        rx, ry = w_root, z_root
-    Sx, Sy = sum(nx), sum(ny)
-    x, y = [v / Sx for v in nx], [v / Sy for v in ny]
+    nc, T, P, K, kern, rx, ry, nx, ny, Sx, Sy, x, y = _phases(model, z, X, incipient_is_y, z_root, w_root)
     lpx, Zx, _ = kern.ln_phi_list(x, P, rx)
     lpy, Zy, _ = kern.ln_phi_list(y, P, ry)
     F = [X[i] + lpy[i] - lpx[i] for i in range(nc)]

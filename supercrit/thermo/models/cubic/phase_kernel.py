@@ -20,6 +20,22 @@ if TYPE_CHECKING:
 SMALL_NC = 8  # [-] up to this many components the phase kernel runs in Python floats (a speed setting)
 
 
+def _volume_terms(V: float, Bm: float, d1: float, d2: float, R: float) -> tuple:
+    """The volume functions of F = A_r/(RT) for a two-parameter cubic and their V, B derivatives
+    (Michelsen & Mollerup 2007, ch. 3): f, f_V, f_B, f_VV, f_VB, f_BB, g, g_V, g_B, g_BV, g_BB, g_VV."""
+    e1, e2 = V + d1 * Bm, V + d2 * Bm
+    VB = V - Bm
+    f = math.log(e1 / e2) / (R * Bm * (d1 - d2)) if d1 != d2 else 1.0 / (R * e1)
+    fV = -1.0 / (R * e1 * e2)
+    fB = -(f + V * fV) / Bm
+    fVV = -fV * (1.0 / e1 + 1.0 / e2)
+    fVB = -(2.0 * fV + V * fVV) / Bm
+    fBB = -(2.0 * fB + V * fVB) / Bm
+    g = math.log1p(-Bm / V)
+    gBV = 1.0 / (VB * VB)
+    return f, fV, fB, fVV, fVB, fBB, g, Bm / (V * VB), -1.0 / VB, gBV, -gBV, -gBV + 1.0 / (V * V)
+
+
 class CubicPhaseKernel:
     """Fugacity coefficients of one cubic model at fixed T, for any (p, x), with analytic derivatives.
 
@@ -267,24 +283,7 @@ class CubicPhaseKernel:
         Bm = float(b @ x)
         Z, _, _ = self.pick_Z(a, Bm, p, phase)
         V = Z * RT / p
-        d1, d2 = self.d1, self.d2
-        e1, e2 = V + d1 * Bm, V + d2 * Bm
-        VB = V - Bm
-        if d1 != d2:
-            f = np.log(e1 / e2) / (R * Bm * (d1 - d2))
-        else:
-            f = 1.0 / (R * e1)
-        fV = -1.0 / (R * e1 * e2)
-        fB = -(f + V * fV) / Bm
-        fVV = -fV * (1.0 / e1 + 1.0 / e2)
-        fVB = -(2.0 * fV + V * fVV) / Bm
-        fBB = -(2.0 * fB + V * fVB) / Bm
-        g = np.log1p(-Bm / V)
-        gV = Bm / (V * VB)
-        gB = -1.0 / VB
-        gBV = 1.0 / VB ** 2
-        gBB = -1.0 / VB ** 2
-        gVV = -1.0 / VB ** 2 + 1.0 / V ** 2
+        f, fV, fB, fVV, fVB, fBB, g, gV, gB, gBV, gBB, gVV = _volume_terms(V, Bm, self.d1, self.d2, R)
         D = a
         Di = 2.0 * ax
         DT = float(x @ self.daij @ x)
@@ -360,25 +359,7 @@ class CubicPhaseKernel:
         Bm = dot(b, xs)
         Z, _, _ = self._pick_Z_inline(a, Bm, p, phase)
         V = Z * RT / p
-        d1, d2 = self.d1, self.d2
-        e1, e2 = V + d1 * Bm, V + d2 * Bm
-        VB = V - Bm
-        if d1 != d2:
-            f = math.log(e1 / e2) / (R * Bm * (d1 - d2))
-        else:
-            f = 1.0 / (R * e1)
-        fV = -1.0 / (R * e1 * e2)
-        fB = -(f + V * fV) / Bm
-        fVV = -fV * (1.0 / e1 + 1.0 / e2)
-        fVB = -(2.0 * fV + V * fVV) / Bm
-        fBB = -(2.0 * fB + V * fVB) / Bm
-        g = math.log1p(-Bm / V)
-        gV = Bm / (V * VB)
-        gB = -1.0 / VB
-        VB2 = VB ** 2
-        gBV = 1.0 / VB2
-        gBB = -gBV
-        gVV = -gBV + 1.0 / V ** 2
+        f, fV, fB, fVV, fVB, fBB, g, gV, gB, gBV, gBB, gVV = _volume_terms(V, Bm, self.d1, self.d2, R)
         D = a
         DT_ = D / T
         FB = -gB - DT_ * fB
