@@ -19,6 +19,7 @@ from __future__ import annotations
 import numpy as np
 
 from ...errors import ConvergenceError
+from ..models.cubic.phase_kernel import _volume_terms
 from .result import SolverReport
 
 
@@ -30,17 +31,7 @@ def _Q(model, T, V, n):
     Bm = float(b @ n)
     D = float(n @ kern.aij @ n)
     Di = 2.0 * (kern.aij @ n)
-    d1, d2 = kern.d1, kern.d2
-    e1, e2 = V + d1 * Bm, V + d2 * Bm
-    VB = V - Bm
-    f = np.log(e1 / e2) / (R * Bm * (d1 - d2)) if d1 != d2 else 1.0 / (R * e1)
-    fV = -1.0 / (R * e1 * e2)
-    fB = -(f + V * fV) / Bm
-    fVV = -fV * (1.0 / e1 + 1.0 / e2)
-    fVB = -(2.0 * fV + V * fVV) / Bm
-    fBB = -(2.0 * fB + V * fVB) / Bm
-    gB = -1.0 / VB
-    gBB = -1.0 / VB ** 2
+    f, _, fB, _, _, fBB, _, _, gB, _, gBB, _ = _volume_terms(float(V), Bm, kern.d1, kern.d2, R)
     FnB = -gB
     FBD = -fB / T
     FBB = -N * gBB - D / T * fBB
