@@ -43,15 +43,36 @@ def lowest_temperature(fluid) -> float:
     return float(max(k.Tt for k, xi in zip(fluid._comps, fluid.x) if xi > 0))
 
 
+_ENVELOPES: dict = {}  # traced envelopes shared by Fluids with the same model, constants, k_ij and feed
+
+
+def _signature(fluid) -> tuple:
+    """Everything a traced envelope depends on: model, component constants, k_ij and the feed (bytes)."""
+    m = fluid.model
+    arrays = tuple(np.asarray(getattr(m, k), dtype=float).tobytes() for k in ("ac", "b", "c") if hasattr(m, k))
+    return (fluid.model_name, fluid.components, fluid.x.tobytes(), np.asarray(fluid.kij, dtype=float).tobytes(),
+            tuple((k.Tc, k.pc, k.omega, k.Tt) for k in fluid._comps), arrays)
+
+
 def mixture_envelope(fluid) -> Envelope:
-    """The traced phase envelope of the fluid's composition (cached per Fluid)."""
+    """The traced phase envelope of the fluid's composition (cached per Fluid, and per process for every
+    Fluid with the same model, constants, k_ij and feed: routes of one scenario and the variants of a
+    sweep share their feed's envelope; tracing is deterministic, so sharing never changes an answer)."""
     cache = _cache(fluid)
     if "envelope" not in cache:
-        Tc, pc, w = _consts(fluid)
-        present = fluid.x > 0
-        if int(present.sum()) == 1:
-            raise InputError("the composition has one component present; use a pure Fluid for saturation", "envelope")
-        cache["envelope"] = trace_envelope(fluid.model, fluid.x, Tc, pc, w, lowest_temperature(fluid))
+        key = _signature(fluid)
+        env = _ENVELOPES.get(key)
+        if env is None:
+            Tc, pc, w = _consts(fluid)
+            present = fluid.x > 0
+            if int(present.sum()) == 1:
+                raise InputError("the composition has one component present; use a pure Fluid for saturation",
+                                 "envelope")
+            env = trace_envelope(fluid.model, fluid.x, Tc, pc, w, lowest_temperature(fluid))
+            if len(_ENVELOPES) >= 64:
+                _ENVELOPES.clear()
+            _ENVELOPES[key] = env
+        cache["envelope"] = env
     return cache["envelope"]
 
 
