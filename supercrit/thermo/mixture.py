@@ -246,6 +246,18 @@ def flash_p_prop_mixture(fluid, p, target, key, T_guess=300.0, K0=None, xtol=1e-
     if r is None:
         f(Ts)
         r = memo[Ts]
+    miss = _prop(fluid, r, key) - target
+    R_T = 8.314462618 * Ts  # [J mol-1] scale of the tolerance (R from CODATA 2018)
+    scale = abs(target) + R_T if key == "h" else abs(target) + 8.314462618
+    if abs(miss) > 1e-6 * scale:
+        # Brent closed on a jump of h(T) (or s(T)): the PT flash changes phase discontinuously there (e.g.
+        # a second liquid the vapour-liquid flash does not split off) - no state with this h or s exists
+        # in the model's two-phase description; never return the nearest one as if it were the answer
+        raise ConvergenceError(
+            f"(p = {p / 1e5:.4f} bar, {key} = {target:.6g}): {key} of {fluid!r} jumps at T = {Ts:.3f} K "
+            f"(by {miss:+.4g}); the state lies in a region the vapour-liquid flash does not describe "
+            f"(three phases, e.g. a second liquid); three-phase equilibrium is not computed",
+            SolverReport(False, 200, abs(miss), "Brent on T around the PT flash"))
     return r
 
 

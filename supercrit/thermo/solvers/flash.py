@@ -169,10 +169,14 @@ def _split(kern, z, p, lnK, max_ss=12, max_newton=40):
             out = _newton_split(kern, z, p, lnK, idx, 10, it, method + "+Newton", strict=True, beta0=beta)
             if out is not None:
                 return out
-    return _newton_split(kern, z, p, lnK, idx, max_newton, max_ss, method + "+Newton", strict=False)
+    out = _newton_split(kern, z, p, lnK, idx, max_newton, max_ss, method + "+Newton", strict=False)
+    if out is None:  # the modified Newton gave up: Newton on the plain Hessian (it finds splits the other misses)
+        out = _newton_split(kern, z, p, lnK, idx, max_newton, max_ss, method + "+Newton", strict=False,
+                            modified=False)
+    return out
 
 
-def _newton_split(kern, z, p, lnK, idx, max_newton, it, method, strict, beta0=0.5):
+def _newton_split(kern, z, p, lnK, idx, max_newton, it, method, strict, beta0=0.5, modified=True):
     """Newton on the Gibbs energy in the vapour mole numbers v (liquid l = z - v), from ln K (lists).
 
     Hessian H_ij = (n^V dln phi^V_i/dn_j - 1)/V + (n^L dln phi^L_i/dn_j - 1)/L + delta_ij z_i/(v_i l_i),
@@ -242,7 +246,7 @@ def _newton_split(kern, z, p, lnK, idx, max_newton, it, method, strict, beta0=0.
         D = [z[i] / (v[i] * l[i]) for i in idx]
         for a in range(m):
             H[a][a] += D[a]
-        if not strict:
+        if not strict and modified:
             # near the critical point the Gibbs surface is not convex between the start and the solution
             # (and very flat): Newton on the raw Hessian then heads for a saddle or the edge 0 < v < z.
             # Here the Hessian, scaled by its ideal part D, has its eigenvalues replaced by their absolute
@@ -270,7 +274,7 @@ def _newton_split(kern, z, p, lnK, idx, max_newton, it, method, strict, beta0=0.
             if all(0.0 < v[i] + s * dv[a] < z[i] for a, i in enumerate(idx)):
                 break
             s *= 0.5
-        if not strict:  # backtrack until G decreases (Armijo, slope g.dv < 0 for positive-definite H)
+        if not strict and modified:  # backtrack until G decreases (Armijo, slope g.dv < 0 for positive-definite H)
             slope = sum([ga * da for ga, da in zip(g, dv)])
             for _ in range(40):
                 vt = v[:]
