@@ -430,7 +430,7 @@ def _kij_checks(scenario, rr, fmt) -> list[Reason]:
     def perturbed(fluid, a, b, value):
         # the stream's own fluid (its k_ij set, overrides and constants) with one pair changed; one perturbed
         # Fluid, and so one envelope trace, per model, composition, k_ij table and change
-        key = (fluid.model_name, fluid.components, fluid.x.tobytes(), fluid.kij.tobytes(), a, b, float(value))
+        key = (fluid.signature, a, b, float(value))
         if key not in _PERTURBED:
             if len(_PERTURBED) >= 64:
                 _PERTURBED.clear()

@@ -75,11 +75,6 @@ def pseudo_critical_temperature(fluid, p: float) -> float:
 _LINES: dict = {}  # pseudo-critical lines shared by fluids of the same model and composition
 
 
-def _signature(fluid):
-    return (fluid.model_name, tuple(fluid.components), tuple(np.round(fluid.x, 12)),
-            fluid.kij.tobytes() if hasattr(fluid, "kij") else b"")
-
-
 def _pseudo_critical_T(fluid, p: float, T_hint: float | None = None) -> float:
     cache = fluid.__dict__.setdefault("_pseudo_critical_cache", {})
     if p in cache:
@@ -90,11 +85,11 @@ def _pseudo_critical_T(fluid, p: float, T_hint: float | None = None) -> float:
 
 def _pseudo_critical_line(fluid):
     """T_pc(p) as a monotone spline through exact solves at 36 pressures from 1.0001 pc to 60 pc (each started
-    from its neighbour; cached per model and composition); used to bracket crossings, which are then located
+    from its neighbour; cached per fluid signature: model, constants, k_ij, composition); used to bracket crossings, which are then located
     with exact solves."""
     from scipy.interpolate import PchipInterpolator
 
-    key = _signature(fluid)
+    key = fluid.signature
     if key not in _LINES:
         pc = fluid.critical_point().p
         u = np.linspace(np.log(1e-4), np.log(59.0), 36)

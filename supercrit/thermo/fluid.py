@@ -139,6 +139,16 @@ class Fluid(PhaseBoundaries):
         return len(self.components) == 1
 
     @property
+    def signature(self) -> tuple:
+        """Everything a computed state of this fluid depends on: model, component constants, k_ij and
+        composition (as bytes). Fluids with equal signatures give equal answers; caches shared between
+        Fluid objects (envelopes, pseudo-critical lines, perturbed fluids) are keyed by it."""
+        m = self.model
+        arrays = tuple(np.asarray(getattr(m, k), dtype=float).tobytes() for k in ("ac", "b", "c") if hasattr(m, k))
+        return (self.model_name, self.components, self.x.tobytes(), np.asarray(self.kij, dtype=float).tobytes(),
+                tuple((k.Tc, k.pc, k.omega, k.Tt, k.M) for k in self._comps), arrays)
+
+    @property
     def M(self) -> float:
         """Molar mass [kg mol-1]."""
         return float(self.x @ self.M_i)

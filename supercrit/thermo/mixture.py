@@ -46,21 +46,13 @@ def lowest_temperature(fluid) -> float:
 _ENVELOPES: dict = {}  # traced envelopes shared by Fluids with the same model, constants, k_ij and feed
 
 
-def _signature(fluid) -> tuple:
-    """Everything a traced envelope depends on: model, component constants, k_ij and the feed (bytes)."""
-    m = fluid.model
-    arrays = tuple(np.asarray(getattr(m, k), dtype=float).tobytes() for k in ("ac", "b", "c") if hasattr(m, k))
-    return (fluid.model_name, fluid.components, fluid.x.tobytes(), np.asarray(fluid.kij, dtype=float).tobytes(),
-            tuple((k.Tc, k.pc, k.omega, k.Tt) for k in fluid._comps), arrays)
-
-
 def mixture_envelope(fluid) -> Envelope:
     """The traced phase envelope of the fluid's composition (cached per Fluid, and per process for every
     Fluid with the same model, constants, k_ij and feed: routes of one scenario and the variants of a
     sweep share their feed's envelope; tracing is deterministic, so sharing never changes an answer)."""
     cache = _cache(fluid)
     if "envelope" not in cache:
-        key = _signature(fluid)
+        key = fluid.signature
         env = _ENVELOPES.get(key)
         if env is None:
             Tc, pc, w = _consts(fluid)

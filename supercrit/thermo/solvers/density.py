@@ -485,10 +485,12 @@ def warm_density(model, T: float, p: float, x, rho0: float, rho_c: float, max_it
         liquid = rho0 > rho_c
         if (liquid and p < 1.005 * ps) or (not liquid and p > 0.995 * ps):
             return None
-    R = float(model.R(np.asarray(x, dtype=float)))
+    gc = getattr(model, "gas_constant", None)
+    R = float(gc) if gc is not None else float(model.R(np.asarray(x, dtype=float)))
     rho = float(rho0)
     scalar = getattr(model, "alphar_derivs_scalar", None)
-    xt = tuple(np.asarray(x, dtype=float).ravel().tolist())
+    xt = x if isinstance(x, tuple) else tuple(np.asarray(x, dtype=float).ravel().tolist())
+    prev = float("inf")
     for _ in range(max_iter):
         if scalar is not None:  # the same numbers without numpy's per-call overhead
             _, _, A01, _, _, A02 = scalar(T, rho, xt)
@@ -504,6 +506,9 @@ def warm_density(model, T: float, p: float, x, rho0: float, rho_c: float, max_it
         rho += step
         if T < crit.T and ((rho > rho_c) != (rho0 > rho_c)):
             return None
-        if abs(step) <= 1e-13 * rho:
+        # converged: a step at round-off, or (quadratic convergence) one below 1e-8 after one below 1e-4,
+        # which leaves an error of order 1e-16
+        if abs(step) <= 1e-13 * rho or (abs(step) <= 1e-8 * rho and prev <= 1e-4 * rho):
             return rho
+        prev = abs(step)
     return None

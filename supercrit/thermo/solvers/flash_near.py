@@ -20,6 +20,7 @@ import math
 import numpy as np
 
 from ..properties import all_properties
+from .density import warm_density
 
 
 def _props(model, ideal, M, T: float, rho: float, x):
@@ -86,18 +87,15 @@ def single_phase_p_prop(model, ideal, M, x, p: float, target: float, key: str, T
 
 def isobar_walker(fluid, p: float, key: str):
     """T -> property ``key`` [SI] along the isobar p [Pa] of a pure fluid above its critical temperature,
-    where the (T, p) state has one density root: Newton on p(rho) from the previous call's density (the
-    calls of a 1-D search along an isobar are near neighbours), the facade's full solve where that
-    Newton does not settle in 20 steps. Raises ModelRangeError below the critical temperature."""
+    where the (T, p) state has one density root: ``warm_density`` (Newton on p(rho)) from the previous
+    call's density moved along the isobar's slope (the calls of a 1-D search along an isobar are near
+    neighbours), the facade's full solve where that Newton does not settle. Raises ModelRangeError below the critical temperature."""
     from ...errors import ModelRangeError
 
     c = fluid._crit
     if c is None or not fluid.is_pure:
         raise ModelRangeError("isobar_walker is for pure fluids with a critical point")
     model, ideal, M, x = fluid.model, fluid.ideal, fluid.M_i, fluid.x
-    R = float(model.gas_constant)
-    scal = getattr(model, "alphar_derivs_scalar", None)
-    xt = tuple(x.tolist())
     last = {}
 
     def value(T: float) -> float:
@@ -105,29 +103,11 @@ def isobar_walker(fluid, p: float, key: str):
         if T < c.T:
             raise ModelRangeError(f"isobar_walker: T = {T:.4f} K is below the critical temperature {c.T:.4f} K")
         rho = last.get("rho")
-        if rho is not None and scal is not None:
+        if rho is not None:
             # predictor along the isobar: drho = -(dp/dT)_rho / (dp/drho)_T dT, then Newton on p(rho)
-            rho = rho - last["slope"] * (T - last["T"])
-            if not rho > 0:
-                rho = last["rho"]
-            prev = float("inf")
-            for _ in range(20):
-                d = scal(T, rho, xt)
-                pr = rho * R * T * (1.0 + d[2])
-                dp = R * T * (1.0 + 2.0 * d[2] + d[5])
-                if not dp > 0:
-                    rho = None
-                    break
-                step = (p - pr) / dp
-                step = max(min(step, 0.3 * rho), -0.3 * rho)
-                rho += step
-                # quadratic convergence: a step below 1e-8 rho after one below 1e-4 rho leaves < 1e-15
-                if abs(step) <= 1e-13 * rho or (abs(step) <= 1e-8 * rho and prev <= 1e-4 * rho):
-                    break
-                prev = abs(step)
-            else:
-                rho = None
-        if rho is None or scal is None:
+            pred = rho - last["slope"] * (T - last["T"])
+            rho = warm_density(model, T, p, x, pred if pred > 0 else rho, c.rho)
+        if rho is None:
             rho = float(fluid.state(T=T, p=p).rho_molar)
         pr = all_properties(model, ideal, M, T, rho, x)
         last.update(rho=rho, T=T, slope=float(pr["dpdT"]) / float(pr["dpdrho"]))
