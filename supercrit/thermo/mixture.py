@@ -16,7 +16,7 @@ from ..errors import ConvergenceError, InputError, ModelRangeError
 from .properties import all_properties
 from .solvers.critical import critical_point_hk
 from .solvers.envelope import Envelope, EnvelopePoint, trace_envelope
-from .solvers.flash import FlashResult, flash_Tp
+from .solvers.flash import FlashResult, SecondLiquidError, flash_Tp
 from .solvers.saturation_point import solve_sat_point
 from .solvers.result import SolverReport
 from .state import GAS, LIQUID, SUPERCRITICAL, TWO_PHASE, State
@@ -221,7 +221,15 @@ def flash_p_prop_mixture(fluid, p, target, key, T_guess=300.0, K0=None, xtol=1e-
     a, fa = T0, f0
     for _ in range(60):
         b = min(max(a + step, lo_lim), hi_lim)
-        fb = f(b)
+        try:
+            fb = f(b)
+        except SecondLiquidError:
+            # the widening step overshot into a liquid-liquid region beyond the answer: step back and
+            # shorten; if the region lies right next to a, the answer may be inside it: say so
+            if abs(step) < 0.01:
+                raise
+            step *= 0.25
+            continue
         if np.sign(fb) != np.sign(fa) or fb == 0.0:
             break
         if b in (lo_lim, hi_lim):

@@ -35,6 +35,36 @@ def dp_drho(model, T, rho, x):
     return model.R(x) * np.asarray(T, dtype=float) * (1.0 + 2.0 * d.A01 + d.A02)
 
 
+def phase_identification_parameter(model, T: float, rho: float, x) -> float:
+    """Phase identification parameter Pi [-] of one state (Venkatarathnam & Oellrich, Fluid Phase Equilib.
+    301 (2011) 225-233): Pi = V [(d2p/dV dT)/(dp/dT)_V - (d2p/dV2)_T/(dp/dV)_T], written in density as
+    Pi = 2 - rho (d2p/drho dT)/(dp/dT) + rho (d2p/drho2)/(dp/drho). Pi > 1: liquid-like; Pi < 1: vapour-like
+    (the ideal gas has Pi = 1; a gas with a positive second virial coefficient also has Pi > 1, so callers
+    combine Pi with a temperature criterion). The second derivatives of p are central differences of the
+    analytic (dp/drho)_T (relative steps 1e-5 in rho and T).
+    """
+    T, rho = float(T), float(rho)
+    x = np.asarray(x, dtype=float)
+    hr, hT = 1e-5 * rho, 1e-5 * T
+    R = float(model.R(x))
+    Ts, rhos = (T, T, T, T + hT, T - hT), (rho, rho + hr, rho - hr, rho, rho)
+    scalar = getattr(model, "alphar_derivs_scalar", None)
+    if scalar is not None:  # optional hook (Python floats): A00, A10, A01, A20, A11, A02
+        xt = tuple(x.tolist())
+        d = [scalar(Ti, ri, xt) for Ti, ri in zip(Ts, rhos)]
+        A01, A11 = d[0][2], d[0][4]
+        dpr = [R * Ti * (1.0 + 2.0 * di[2] + di[5]) for Ti, di in zip(Ts, d)]
+    else:
+        da = model.alphar_derivs(np.array(Ts), np.array(rhos), x)
+        A01, A11 = float(da.A01[0]), float(da.A11[0])
+        dpr = (R * np.array(Ts) * (1.0 + 2.0 * da.A01 + da.A02)).tolist()
+    dp_drho_ = dpr[0]
+    d2p_drho2 = (dpr[1] - dpr[2]) / (2.0 * hr)
+    d2p_drhodT = (dpr[3] - dpr[4]) / (2.0 * hT)
+    dp_dT = rho * R * (1.0 + A01 - A11)
+    return 2.0 - rho * d2p_drhodT / dp_dT + rho * d2p_drho2 / dp_drho_
+
+
 def ln_fugacity_coefficients(model, T, rho, x):
     """ln phi_i [-], shape (..., nc)."""
     d = model.alphar_derivs(T, rho, x)

@@ -175,3 +175,40 @@ def test_split_found_where_the_modified_newton_gives_up():
     lo, hi = f.state(T=215.0, p=p), f.state(T=217.5, p=p)
     assert float(lo.vapor_fraction) < float(st.vapor_fraction) < float(hi.vapor_fraction)
     assert float(f.state(p=p, h=float(st.h)).T) == pytest.approx(217.0, abs=1e-6)
+
+
+def test_liquid_liquid_split_is_reported_as_a_second_liquid():
+    """Found by the long fuzz (tests/reliability, -m slow): water/ethanol/CO2 0.04/0.64/0.32 at 226 K,
+    4.4 bar splits into a water-rich and an ethanol-rich liquid (20,700 mol/m3, Z = 0.011). It was
+    reported as vapour-liquid with a 'vapour' fraction of 0.9994; a (p, h) round trip from it landed on a
+    single liquid 0.04 K away, because a split started from a vapour-liquid neighbour's K-values ended
+    outside (0, 1) and the feed was then called single phase without trying the stability test's own
+    trial phase."""
+    from supercrit.thermo.solvers.flash import SecondLiquidError
+
+    f = Fluid({"H2O": 0.04, "C2H5OH": 0.64, "CO2": 0.32}, model="peng-robinson")
+    Tc, pc, w = consts(f)
+    p = 4.4e5
+    with pytest.raises(SecondLiquidError, match="two liquids"):
+        f.state(T=226.0, p=p)
+    vl = flash_Tp(f.model, 265.0, p, f.x, Tc, pc, w)  # a vapour-liquid split (CO2-rich vapour)
+    assert vl.two_phase and vl.rho_v < 0.05 * vl.rho_l
+    for T in (225.958, 226.0):
+        cold = flash_Tp(f.model, T, p, f.x, Tc, pc, w, check_second_liquid=False)
+        warm = flash_Tp(f.model, T, p, f.x, Tc, pc, w, K0=vl.K, check_second_liquid=False)
+        assert cold.two_phase and warm.two_phase
+        assert warm.beta == pytest.approx(cold.beta, abs=1e-9)
+        with pytest.raises(SecondLiquidError):
+            flash_Tp(f.model, T, p, f.x, Tc, pc, w, K0=vl.K)
+
+
+@pytest.mark.parametrize("comp, T, p", [
+    ({"CO2": 0.9, "N2": 0.1}, 295.0, 80e5),    # near the mixture critical point: dense vapour
+    ({"CO2": 0.9, "H2": 0.1}, 250.0, 100e5),   # H2-rich vapour (positive second virial coefficient)
+    ({"CO2": 0.99, "H2O": 0.01}, 300.0, 30e5),  # water drop-out from CO2 gas
+])
+def test_vapour_liquid_splits_are_not_taken_for_two_liquids(comp, T, p):
+    f = Fluid(comp)
+    Tc, pc, w = consts(f)
+    r = flash_Tp(f.model, T, p, f.x, Tc, pc, w)
+    assert r.two_phase

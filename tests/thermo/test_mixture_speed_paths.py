@@ -17,7 +17,7 @@ import supercrit.thermo.solvers.saturation_point as satpt_mod
 from supercrit import Fluid
 from supercrit.thermo.mixture import mixture_envelope
 from supercrit.thermo.models.cubic.core import CubicPhaseKernel
-from supercrit.thermo.solvers.flash import _guards_pass, _split, flash_Tp
+from supercrit.thermo.solvers.flash import SecondLiquidError, _guards_pass, _split, flash_Tp
 from supercrit.thermo.solvers.saturation_point import sat_residual, solve_sat_point
 from supercrit.thermo.solvers.stability import solve_dense, solve_dense_many, stability_test, wilson_K
 
@@ -118,11 +118,15 @@ def test_early_newton_split_equals_plain_substitution(T, p, monkeypatch):
 def test_flash_with_early_stopped_stability_equals_complete_stability_test():
     # CO2 + propane at 205 K: the first Wilson trial is (weakly) unstable but its split fails the guards;
     # the flash must then run every trial, as the complete test does, and find the liquid-liquid split
+    # (which the default flash then reports as a second liquid, not as a vapour-liquid split)
     f = Fluid({"CO2": 0.8, "C3H8": 0.2})
     Tc, pc, w = consts(f)
     for T, p in ((205.17241379310346, 613793.103448276), (205.17241379310346, 2155172.413793104),
                  (240.0, 20e5), (260.0, 25e5)):
-        r = flash_Tp(f.model, T, p, f.x, Tc, pc, w)
+        r = flash_Tp(f.model, T, p, f.x, Tc, pc, w, check_second_liquid=False)
+        if T < 210.0:
+            with pytest.raises(SecondLiquidError, match="two liquids"):
+                flash_Tp(f.model, T, p, f.x, Tc, pc, w)
         kern = f.model.phase_kernel(T)
         lpz = kern.ln_phi(f.x, p)[0]
         trials = [np.where(np.arange(2) == i, 1.0, 1e-3 * f.x) for i in range(2) if T < Tc[i] and f.x[i] < 0.5]

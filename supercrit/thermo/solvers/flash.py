@@ -31,6 +31,7 @@ from operator import mul as _mul
 import numpy as np
 
 from ...errors import ConvergenceError
+from ..properties import phase_identification_parameter
 from .result import SolverReport
 from .stability import _stability_lists, solve_dense
 
@@ -370,7 +371,7 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
     starts = [st.K.tolist()]
     if K0l is not None:
         starts.insert(0, K0l)
-    tried = []
+    tried, outside = [], None
     while out is None and starts:
         Ks = starts.pop(0)
         tried.append(Ks)
@@ -378,22 +379,37 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
         out = _split(kern, zl, p, lnK)
         if out is not None and not _guards_pass(zl, out, lpz):
             out = None
+        if out is not None and not 0.0 < out[0] < 1.0:
+            # a split outside (0, 1) from this start (e.g. a warm start from a vapour-liquid neighbour
+            # while the feed here splits into two liquids): the feed was found unstable, so the other
+            # starts are tried before the feed is called single phase
+            outside, out = out, None
         if out is None and not starts and not st.complete:
             st = _stability_lists(kern, zl, p, trials, lpz, Zz)
             iters += st.iterations
             if not st.stable and st.K.tolist() not in tried:
                 starts.append(st.K.tolist())
+    if out is None and outside is not None:
+        return _single(kern, z, p, T, Zz, st.tm_min, iters + outside[8],
+                       f"{outside[9]}: beta={outside[0]:.3g} outside (0, 1)")
     if out is None:
         return _single(kern, z, p, T, Zz, st.tm_min, iters, "split rejected by guards: single phase")
     beta, x, y, lnK, lpx, lpy, Zx, Zy, it, method = out
-    if not 0.0 < beta < 1.0:
-        return _single(kern, z, p, T, Zz, st.tm_min, iters + it, f"{method}: beta={beta:.3g} outside (0, 1)")
     RT = kern.RT
     x, y = np.array(x), np.array(y)
     rho_x = kern.density(x, Zx * RT / p)
     rho_y = kern.density(y, Zy * RT / p)
     if rho_x < rho_y:  # label the denser phase liquid
         x, y, rho_x, rho_y, beta = y, x, rho_y, rho_x, 1.0 - beta
+    if check_second_liquid and _is_liquid_like(model, T, p, y, rho_y, Tcl):
+        yl = y.tolist()
+        raise SecondLiquidError(
+            f"flash at T = {T:.3f} K, p = {p / 1e5:.4f} bar: the feed splits into two liquids (densities "
+            f"{rho_x:.0f} and {rho_y:.0f} mol/m3; the lighter one is liquid-like, not a vapour); "
+            f"liquid-liquid equilibrium is not reported as vapour-liquid and is not computed by supercrit. "
+            f"Treat this state as unsafe (free second liquid, e.g. water). Mole fractions of the lighter "
+            f"liquid: " + ", ".join(f"{n} {v:.4f}" for n, v in zip(model.components, yl)) + ".",
+            SolverReport(False, iters + it, 0.0, "VLE flash: both phases liquid-like"))
     # second-liquid check: near-pure trials on the liquid for components that are subcritical
     # (T < Tc) and not already dominant in it (common practice: only these can form their own liquid)
     xl = x.tolist()
@@ -414,6 +430,21 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
                 SolverReport(False, iters + it, s2.tm_min, "VLE flash + stability of the liquid"))
     return FlashResult(T, p, z, float(beta), x, y, y / x, float(rho_x), float(rho_y), None, None, st.tm_min,
                        SolverReport(True, iters + it, 0.0, method))
+
+
+def _is_liquid_like(model, T, p, y, rho_y, Tc) -> bool:
+    """Whether the lighter phase of a split is a liquid: the phase identification parameter Pi > 1
+    (Venkatarathnam & Oellrich, Fluid Phase Equilib. 301 (2011) 225) and T below the phase's
+    pseudo-critical temperature sum y_i Tc_i (Kay, Ind. Eng. Chem. 28 (1936) 1014; this excludes dense
+    supercritical fluids and gases with a positive second virial coefficient, which also have Pi > 1).
+    Pi is only evaluated when the phase is dense, Z < 0.5 (a cost filter: the vapours of vapour-liquid
+    splits in this tool's range have larger Z except close to a critical point; common practice)."""
+    yl = y.tolist()
+    if T >= sum(yi * ti for yi, ti in zip(yl, Tc)):
+        return False
+    if p / (rho_y * float(model.R(y)) * T) >= 0.5:
+        return False
+    return phase_identification_parameter(model, T, rho_y, y) > 1.0
 
 
 def _guards_pass(z, out, lpz):
