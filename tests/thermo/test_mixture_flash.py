@@ -164,17 +164,26 @@ def test_two_phase_state_from_facade():
 def test_split_found_where_the_modified_newton_gives_up():
     """Found by the long fuzz (tests/reliability, -m slow): ethanol/N2/CO2/propane at 217 K, e^12 Pa. The
     modified (positive-definite) Newton of the split gave up and the flash reported a single liquid while
-    215 K and 217.5 K are two-phase with ~65 % vapour; the plain-Hessian Newton finds the split."""
+    215 K and 217.5 K are two-phase with ~65 % vapour; the plain-Hessian Newton finds the split. That
+    vapour (39 % propane, 0.63 bar of propane, above propane's vapour pressure of about 0.5 bar at 217 K,
+    from memory) is itself unstable: a propane-rich second liquid forms, so the facade reports a second
+    liquid (found by the vapour-side check added later); at 230 K the vapour is stable."""
     import math
+
+    from supercrit.thermo.solvers.flash import SecondLiquidError
 
     comp = {"C2H5OH": 0.285714, "N2": 0.142857, "CO2": 0.285714, "C3H8": 0.285715}
     f = Fluid(comp, model="peng-robinson")
+    Tc, pc, w = consts(f)
     p = math.exp(12.0)
-    st = f.state(T=217.0, p=p)
+    split = [flash_Tp(f.model, T, p, f.x, Tc, pc, w, check_second_liquid=False) for T in (215.0, 217.0, 217.5)]
+    assert all(r.two_phase for r in split)
+    assert split[0].beta < split[1].beta < split[2].beta
+    with pytest.raises(SecondLiquidError, match="vapour of the vapour-liquid split is itself unstable"):
+        f.state(T=217.0, p=p)
+    st = f.state(T=230.0, p=p)
     assert str(st.phase) == "two-phase"
-    lo, hi = f.state(T=215.0, p=p), f.state(T=217.5, p=p)
-    assert float(lo.vapor_fraction) < float(st.vapor_fraction) < float(hi.vapor_fraction)
-    assert float(f.state(p=p, h=float(st.h)).T) == pytest.approx(217.0, abs=1e-6)
+    assert float(f.state(p=p, h=float(st.h)).T) == pytest.approx(230.0, abs=1e-6)
 
 
 def test_liquid_liquid_split_is_reported_as_a_second_liquid():
@@ -212,3 +221,23 @@ def test_vapour_liquid_splits_are_not_taken_for_two_liquids(comp, T, p):
     Tc, pc, w = consts(f)
     r = flash_Tp(f.model, T, p, f.x, Tc, pc, w)
     assert r.two_phase
+
+
+def test_three_phase_state_is_reported_not_returned_as_vapour_liquid():
+    """Found by the long fuzz (tests/reliability, -m slow): N2/ethanol/water 0.47/0.06/0.47 at 240 K,
+    1.63 bar was reported as a single gas (both Newton variants of the split gave up; substitution, which
+    converges there, now continues). The vapour-liquid split it then finds has a vapour with 1.5-10 %
+    ethanol, far above ethanol's vapour pressure (about 0.3 kPa at 250 K, from memory): the vapour is
+    unstable, a second liquid forms, and the flash says so."""
+    import math
+
+    from supercrit.thermo.solvers.flash import SecondLiquidError
+
+    f = Fluid({"N2": 0.470588, "C2H5OH": 0.058824, "H2O": 0.470588})
+    Tc, pc, w = consts(f)
+    p = math.exp(12.0)
+    for T in (240.0, 245.0, 250.0, 270.0):
+        r = flash_Tp(f.model, T, p, f.x, Tc, pc, w, check_second_liquid=False)
+        assert r.two_phase and r.x[2] > 0.85  # water-rich liquid, N2-rich vapour
+        with pytest.raises(SecondLiquidError, match="second liquid forms"):
+            flash_Tp(f.model, T, p, f.x, Tc, pc, w)

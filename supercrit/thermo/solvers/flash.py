@@ -123,57 +123,76 @@ def _gibbs(x, lp):
 NEWTON_AFTER = 3  # [-] substitution steps before the split tries Newton (a speed setting; SS continues if Newton fails)
 
 
-def _split(kern, z, p, lnK, max_ss=12, max_newton=40):
+def _split(kern, z, p, lnK, max_ss=12, max_newton=40, max_ss_after=300):
     """Phase split from ln K (lists); returns (beta, x, y, lnK, lpx, lpy, Zx, Zy, iterations, method) or None.
 
     Successive substitution with GDEM every fifth step; after ``NEWTON_AFTER`` steps a Newton solve is
     tried from the current K (it must converge monotonically, away from the trivial solution), and if it
-    does not, substitution continues to ``max_ss`` steps and Newton takes over from there.
+    does not, substitution continues to ``max_ss`` steps and Newton takes over from there. If both Newton
+    variants give up, substitution goes on (up to ``max_ss_after`` more steps) while it converges: with a
+    component almost absent from one phase (N2 in a water-rich liquid, x ~ 1e-6) Newton's steps are cut
+    to nothing by the bound 0 < v < z, while substitution converges linearly.
     """
-    exp = math.exp
     n = len(z)
     idx = [i for i in range(n) if z[i] > 0]
-    zp = [z[i] for i in idx]
-    ln_phi = kern.ln_phi_list
-    hist = []
-    method = "SS"
-    beta = 0.5
-    for it in range(1, max_ss + 1):
-        K = [exp(v) for v in lnK]
-        try:
-            beta = _rachford_rice_lists(zp, [K[i] for i in idx], beta0=beta)
-        except ValueError:
-            return None
-        x = [zi / (1.0 + beta * (Ki - 1.0)) for zi, Ki in zip(z, K)]
-        y = [Ki * xi for Ki, xi in zip(K, x)]
-        Sx, Sy = sum(x), sum(y)
-        xs, ys = [v / Sx for v in x], [v / Sy for v in y]
-        lpx, Zx, _ = ln_phi(xs, p, "stable")
-        lpy, Zy, _ = ln_phi(ys, p, "stable")
-        new = [(a - b) if zi > 0 else 0.0 for a, b, zi in zip(lpx, lpy, z)]
-        dl = [a - b for a, b in zip(new, lnK)]
-        lnK = new
-        err = max([abs(v) for v in dl])
-        if err < 1e-12:
-            return beta, xs, ys, lnK, lpx, lpy, Zx, Zy, it, method
-        if max([abs(v) for v in lnK]) < 1e-5:
-            return None  # heading to the trivial solution
-        hist.append(dl)
-        if len(hist) >= 3 and it % 5 == 0:  # GDEM / dominant eigenvalue extrapolation
-            d1, d0 = hist[-1], hist[-2]
-            lam = sum(map(_mul, d1, d0)) / sum(map(_mul, d0, d0))
-            if 0.0 < lam < 0.99:
-                f = lam / (1.0 - lam)
-                lnK = [a + b * f for a, b in zip(lnK, d1)]
-                method = "SS+GDEM"
-        if it == NEWTON_AFTER:
-            out = _newton_split(kern, z, p, lnK, idx, 10, it, method + "+Newton", strict=True, beta0=beta)
-            if out is not None:
-                return out
-    out = _newton_split(kern, z, p, lnK, idx, max_newton, max_ss, method + "+Newton", strict=False)
+    state = {"beta": 0.5, "hist": [], "method": "SS", "err": math.inf}
+
+    def ss_steps(lnK, first, last, newton_at=None):
+        """Substitution steps first..last from lnK: ('done', out), ('fail', None) or ('more', lnK)."""
+        exp = math.exp
+        zp = [z[i] for i in idx]
+        ln_phi = kern.ln_phi_list
+        hist = state["hist"]
+        for it in range(first, last + 1):
+            K = [exp(v) for v in lnK]
+            try:
+                beta = state["beta"] = _rachford_rice_lists(zp, [K[i] for i in idx], beta0=state["beta"])
+            except ValueError:
+                return "fail", None
+            x = [zi / (1.0 + beta * (Ki - 1.0)) for zi, Ki in zip(z, K)]
+            y = [Ki * xi for Ki, xi in zip(K, x)]
+            Sx, Sy = sum(x), sum(y)
+            xs, ys = [v / Sx for v in x], [v / Sy for v in y]
+            lpx, Zx, _ = ln_phi(xs, p, "stable")
+            lpy, Zy, _ = ln_phi(ys, p, "stable")
+            new = [(a - b) if zi > 0 else 0.0 for a, b, zi in zip(lpx, lpy, z)]
+            dl = [a - b for a, b in zip(new, lnK)]
+            lnK = new
+            err = max([abs(v) for v in dl])
+            if err < 1e-12:
+                return "done", (beta, xs, ys, lnK, lpx, lpy, Zx, Zy, it, state["method"])
+            if max([abs(v) for v in lnK]) < 1e-5:
+                return "fail", None  # heading to the trivial solution
+            if newton_at is None and err > state["err"] and it % 5 != 1:
+                return "fail", None  # the continued substitution stopped converging
+            state["err"] = err
+            hist.append(dl)
+            if len(hist) >= 3 and it % 5 == 0:  # GDEM / dominant eigenvalue extrapolation
+                d1, d0 = hist[-1], hist[-2]
+                lam = sum(map(_mul, d1, d0)) / sum(map(_mul, d0, d0))
+                if 0.0 < lam < 0.99:
+                    f = lam / (1.0 - lam)
+                    lnK = [a + b * f for a, b in zip(lnK, d1)]
+                    state["method"] = "SS+GDEM"
+            if it == newton_at:
+                out = _newton_split(kern, z, p, lnK, idx, 10, it, state["method"] + "+Newton", strict=True,
+                                    beta0=beta)
+                if out is not None:
+                    return "done", out
+        return "more", lnK
+
+    status, res = ss_steps(lnK, 1, max_ss, newton_at=NEWTON_AFTER)
+    if status != "more":
+        return res
+    lnK = res
+    method = state["method"] + "+Newton"
+    out = _newton_split(kern, z, p, lnK, idx, max_newton, max_ss, method, strict=False)
     if out is None:  # the modified Newton gave up: Newton on the plain Hessian (it finds splits the other misses)
-        out = _newton_split(kern, z, p, lnK, idx, max_newton, max_ss, method + "+Newton", strict=False,
-                            modified=False)
+        out = _newton_split(kern, z, p, lnK, idx, max_newton, max_ss, method, strict=False, modified=False)
+    if out is None and max_ss_after > 0:
+        state["err"] = math.inf
+        status, res = ss_steps(lnK, max_ss + 1, max_ss + max_ss_after)
+        out = res if status == "done" else None
     return out
 
 
@@ -428,6 +447,27 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
                 f"(tangent-plane distance {s2.tm_min:.2e}); a three-phase (L-L-V) region is not computed by "
                 f"supercrit. Treat this state as unsafe (free second liquid, e.g. water).",
                 SolverReport(False, iters + it, s2.tm_min, "VLE flash + stability of the liquid"))
+    # the same check on the vapour: a liquid-like trial phase other than the split's liquid that lowers the
+    # vapour's Gibbs energy means a third phase (e.g. an ethanol-rich liquid condensing from a vapour that
+    # is in equilibrium with a water-rich one): the two-phase answer is not the equilibrium
+    yl = y.tolist()
+    cand = [i for i in range(nc) if T < Tcl[i] and yl[i] < 0.5 and zl[i] > 0]
+    if check_second_liquid and nc > 1 and cand:
+        lpv, Zv, _ = kern.ln_phi_list(yl, p, "stable")
+        trials = []
+        for i in cand:
+            t = [1e-3 * v for v in yl]
+            t[i] = 1.0
+            trials.append(t)
+        s3 = _stability_lists(kern, yl, p, trials, lpv, Zv)
+        if not s3.stable and not s3.w_is_vapor and np.sum((s3.w - x) ** 2) > 1e-6:
+            raise SecondLiquidError(
+                f"flash at T = {T:.3f} K, p = {p / 1e5:.4f} bar: the vapour of the vapour-liquid split is "
+                f"itself unstable (tangent-plane distance {s3.tm_min:.2e}): a second liquid forms, with mole "
+                f"fractions " + ", ".join(f"{n} {v:.4f}" for n, v in zip(model.components, s3.w.tolist()))
+                + "; a three-phase (L-L-V) region is not computed by supercrit. Treat this state as unsafe "
+                "(free second liquid).",
+                SolverReport(False, iters + it + s3.iterations, s3.tm_min, "VLE flash + stability of the vapour"))
     return FlashResult(T, p, z, float(beta), x, y, y / x, float(rho_x), float(rho_y), None, None, st.tm_min,
                        SolverReport(True, iters + it, 0.0, method))
 
