@@ -367,8 +367,9 @@ class Fluid(PhaseBoundaries):
 
         Checks: models without a two-phase region - always; pure fluids - above Tc (one root), else
         the models' own stable-root choice at (T, p) (cubics) or the side of the ancillary vapour
-        pressure with a 0.5 % margin (Span-Wagner; none within 0.5 K of Tc, none at or below the
-        triple-point pressure where solid CO2 can form); mixtures - the PT flash at the solution is
+        pressure with a 0.5 % margin, a mechanically stable root (dp/drho > 0) and a density outside the
+        ancillary saturated densities with a 1 % margin (Span-Wagner; none within 0.5 K of Tc, none at
+        or below the triple-point pressure where solid CO2 can form); mixtures - the PT flash at the solution is
         single-phase with the same density.
         """
         from .solvers.density import _stable_density_scalar
@@ -413,10 +414,22 @@ class Fluid(PhaseBoundaries):
                         return None
                 else:
                     guess_p = getattr(self.model, "saturation_pressure_guess", None)
-                    if guess_p is None or T > c.T - 0.5:
+                    guess_rho = getattr(self.model, "saturation_guess", None)
+                    if guess_p is None or guess_rho is None or T > c.T - 0.5:
                         return None
                     ps = float(guess_p(T))
                     if not ((rho > c.rho and p >= 1.005 * ps) or (rho < c.rho and p <= 0.995 * ps)):
+                        return None
+                    # the root must lie on the side's own branch, not inside the dome: mechanically stable
+                    # and outside the ancillary saturated densities (1 % margin). A Newton started from a
+                    # dense supercritical neighbour can end on the unstable middle root (e.g. 300.9 K,
+                    # 68.1 bar, 10,230 mol/m3 between 6,400 and 15,100: a two-phase state taken for gas)
+                    d = self.model.alphar_derivs_scalar(T, rho, tuple(self.x.tolist())) \
+                        if hasattr(self.model, "alphar_derivs_scalar") else None
+                    if d is None or not 1.0 + 2.0 * d[2] + d[5] > 0.0:
+                        return None
+                    rho_l, rho_v = (float(v) for v in guess_rho(T))
+                    if not ((rho > c.rho and rho >= 0.99 * rho_l) or (rho < c.rho and rho <= 1.01 * rho_v)):
                         return None
         except (SupercritError, ArithmeticError, ValueError):
             return None

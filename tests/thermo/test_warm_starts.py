@@ -105,3 +105,22 @@ def test_isobar_walker_follows_the_state_cp():
     cp = isobar_walker(f, 80e5, "cp")
     for T in (305.0, 307.5, 308.0, 309.0, 315.0, 340.0):
         assert cp(T) == pytest.approx(float(f.state(T=T, p=80e5).cp), rel=1e-9)
+
+
+@pytest.mark.parametrize("model", PURE_MODELS)
+def test_near_start_from_a_dense_supercritical_neighbour_does_not_stop_inside_the_dome(model):
+    """Found while checking the analysis of the bundled extraction sweep: an isenthalpic throttle path of
+    CO2 (h = -8043 J/mol) from 76 bar, 305 K into the dome. From the dense supercritical neighbour the
+    Newton in (T, rho) ended on the unstable middle root (300.9 K, 68.1 bar, 10,230 mol/m3, between the
+    saturated densities 6,400 and 15,100) and the state was returned as gas, vapour fraction 1. The state
+    must be the two-phase one of the full flash."""
+    f = Fluid("CO2", model=model)
+    h = -8043.214548195305
+    near = f.state(p=7622500.0, h=h)
+    assert str(near.phase) == "supercritical"
+    for p in (6811250.0, 6836601.5625, 6849277.34375):
+        s = f.state(p=p, h=h, near=near)
+        full = f.state(p=np.array([p, p]), h=np.array([h, h]))
+        assert str(s.phase) == "two-phase"
+        assert float(s.T) == pytest.approx(float(full.T[0]), abs=1e-9)
+        assert float(s.vapor_fraction) == pytest.approx(float(full.vapor_fraction[0]), abs=1e-9)
