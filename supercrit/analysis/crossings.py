@@ -7,8 +7,9 @@ Boundaries:
 - phase-label changes (gas, liquid, supercritical, two-phase): entering or leaving the two-phase
   region (the saturation line of a pure fluid, the bubble or dew side of a mixture's envelope) and
   entering or leaving the supercritical region across the critical isotherm (T = Tc above pc) or the
-  critical isobar (p = pc above Tc). Located by bisection on t until the two bracketing states differ
-  by less than 0.005 K and 500 Pa (the requirement is 0.01 K and 0.01 bar).
+  critical isobar (p = pc above Tc). For a pure fluid located directly (Brent on t: h(t) - h_sat(p(t)),
+  T(t) - Tc or p(t) - pc); otherwise (mixtures, other label changes) by bisection on t until the two
+  bracketing states differ by less than 0.005 K and 500 Pa (the requirement is 0.01 K and 0.01 bar).
 - the pseudo-critical line (pure fluids above pc): T = T_pc(p), the temperature of maximum cp along
   the isobar, found by bounded maximisation of cp(T) at that pressure;
 - the freezing boundary of CO2 (solid CO2): T = T_sub(p) below the triple-point pressure and
@@ -201,7 +202,14 @@ def _saturation_crossing(fluid, path, ta, sa, tb, sb):
 
     try:
         ga, gb = g(ta), g(tb)
-        if not (np.isfinite(ga) and np.isfinite(gb)) or ga * gb > 0:
+        if not (np.isfinite(ga) and np.isfinite(gb)):
+            return None
+        # an end on the saturation line to round-off (e.g. a condenser's outlet at vapour fraction 0, where
+        # the next step starts) is the crossing itself
+        tol = 1e-12 * (abs(path.h_of(ta)) + 8.314462618 * float(sa.T))
+        ga = 0.0 if abs(ga) <= tol else ga
+        gb = 0.0 if abs(gb) <= tol else gb
+        if ga * gb > 0 or (ga == 0 and gb == 0):
             return None
         tstar = ta if ga == 0 else tb if gb == 0 else brentq(g, ta, tb, xtol=1e-12, rtol=1e-14)
         st = getattr(fluid.saturation(p=path.p_of(tstar)), which)
@@ -209,6 +217,74 @@ def _saturation_crossing(fluid, path, ta, sa, tb, sb):
         return None
     kind, side = _classify(la, lb, True)
     return Crossing(kind, float(tstar), float(st.T), float(st.p), la, lb, side, "", st)
+
+
+def _critical_line_crossing(fluid, path, ta, sa, tb, sb):
+    """A pure fluid's path entering or leaving the supercritical region between two samples, located
+    directly: Brent's method to 1e-10 in t on T(t) - Tc (liquid <-> supercritical: the critical isotherm)
+    or p(t) - pc (gas <-> supercritical: the critical isobar; from the path's own p(t) where it has one, so
+    no state is evaluated until the crossing). None (the caller bisects on labels) for any other label
+    change or when the bracket's ends do not straddle the line."""
+    pair = {_label(sa), _label(sb)}
+    if fluid._crit is None or pair not in ({"liquid", "supercritical"}, {"gas", "supercritical"}):
+        return None
+    c = fluid.critical_point()
+    if pair == {"liquid", "supercritical"}:
+        def g(t):
+            return float(path(t).T) - c.T
+        ga, gb = float(sa.T) - c.T, float(sb.T) - c.T
+    else:
+        p_of = getattr(path, "p_of", None)
+
+        def g(t):
+            return (p_of(t) if p_of is not None else float(path(t).p)) - c.p
+        ga, gb = float(sa.p) - c.p, float(sb.p) - c.p
+        if not (float(sa.T) >= c.T and float(sb.T) >= c.T):
+            return None  # the temperature crosses Tc as well: let the labels decide
+    try:
+        if not (np.isfinite(ga) and np.isfinite(gb)) or ga * gb >= 0:
+            return None
+        ga2, gb2 = g(ta), g(tb)  # the same numbers through the path function (p_of may differ in the last digit)
+        if ga2 * gb2 >= 0:
+            return None
+        tstar = brentq(g, ta, tb, xtol=1e-10, rtol=1e-12)
+        st = path(tstar)
+    except SupercritError:
+        return None
+    kind, side = _classify(_label(sa), _label(sb), True)
+    return Crossing(kind, float(tstar), float(st.T), float(st.p), _label(sa), _label(sb), side, "", st)
+
+
+def _label_crossings(fluid, path, ta, sa, tb, sb, pure, depth=6):
+    """The crossings between two samples with different phase labels. A pure fluid's crossing is located
+    directly where the bracket holds one transition the direct solvers know; otherwise the bracket is
+    halved (up to ``depth`` times) and each half with a label change is handled alike, so that a bracket
+    holding two transitions (supercritical -> liquid -> two-phase in one throttle sample) gives both, and
+    one whose end lies above pc (no saturation there) is narrowed until the saturation solve applies.
+    What remains is bisected on the labels."""
+    if pure:
+        direct = _saturation_crossing(fluid, path, ta, sa, tb, sb) or \
+            _critical_line_crossing(fluid, path, ta, sa, tb, sb)
+        if direct is not None:
+            return [direct]
+        if depth > 0:
+            tm = 0.5 * (ta + tb)
+            try:
+                sm = path(tm)
+            except SupercritError:
+                sm = None
+            if sm is not None:
+                out = []
+                if _label(sm) != _label(sa):
+                    out += _label_crossings(fluid, path, ta, sa, tm, sm, pure, depth - 1)
+                if _label(sm) != _label(sb):
+                    out += _label_crossings(fluid, path, tm, sm, tb, sb, pure, depth - 1)
+                return out
+    a0, sa0, b0, sb0 = _bisect_label(path, ta, sa, tb, sb)
+    kind, side = _classify(_label(sa0), _label(sb0), pure)
+    st = sb0 if _label(sb0) == "two-phase" else sa0
+    return [Crossing(kind, 0.5 * (a0 + b0), 0.5 * (sa0.T + sb0.T), 0.5 * (sa0.p + sb0.p), _label(sa0),
+                     _label(sb0), side, "", st)]
 
 
 def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[float], *, step_id: str = "",
@@ -249,15 +325,7 @@ def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[f
     pure = fluid.is_pure
     for (ta, sa), (tb, sb) in zip(zip(good_t, states), zip(good_t[1:], states[1:])):
         if _label(sa) != _label(sb):
-            direct = _saturation_crossing(fluid, path, ta, sa, tb, sb) if pure else None
-            if direct is not None:
-                out.append(direct)
-                continue
-            a0, sa0, b0, sb0 = _bisect_label(path, ta, sa, tb, sb)
-            kind, side = _classify(_label(sa0), _label(sb0), pure)
-            st = sb0 if _label(sb0) == "two-phase" else sa0
-            out.append(Crossing(kind, 0.5 * (a0 + b0), 0.5 * (sa0.T + sb0.T), 0.5 * (sa0.p + sb0.p), _label(sa0),
-                                _label(sb0), side, "", st))
+            out.extend(_label_crossings(fluid, path, ta, sa, tb, sb, pure))
     # scalar boundaries
     funcs: list[tuple[str, Callable]] = []
     if pure and fluid._crit is not None:

@@ -80,3 +80,20 @@ def test_path_touching_the_pseudo_critical_line_is_not_an_error():
     run = run_scenario(variant_scenario(base, Variant(17, (75e5, 301.15))))
     assert not run.errors
     assert all(ra.verdict is not None for ra in run.analysis.routes)
+
+
+def test_critical_isotherm_and_isobar_are_located_on_the_lines():
+    """A 100 bar CO2 heater from 20 to 50 degC leaves the liquid region on the critical isotherm T = Tc; a
+    compression-like path at 320 K from 60 to 100 bar enters the supercritical region on the critical
+    isobar p = pc (the model's own critical point; labels: supercritical = T >= Tc and p >= pc)."""
+    f = sc.Fluid("CO2", model="pr")
+    c = f.critical_point()
+    cr = find_crossings(f, _isobaric_path(f, 100e5, 293.15, 323.15), np.linspace(0, 1, 7))
+    iso = [x for x in cr if x.kind == "critical-isotherm"]
+    assert len(iso) == 1 and iso[0].T == pytest.approx(c.T, abs=1e-6)
+    assert (iso[0].before, iso[0].after) == ("liquid", "supercritical")
+    path = lambda t: f.state(T=320.0, p=60e5 + t * 40e5)  # noqa: E731
+    cr = find_crossings(f, path, np.linspace(0, 1, 5))
+    bar = [x for x in cr if x.kind == "critical-isobar"]
+    assert len(bar) == 1 and bar[0].p == pytest.approx(c.p, rel=1e-9)
+    assert (bar[0].before, bar[0].after) == ("gas", "supercritical")
