@@ -152,3 +152,74 @@ def test_continuity_along_isotherms(T, p1, frac):
     a, b = f.state(T=T, p=p1), f.state(T=T, p=p2)
     if str(a.phase) == str(b.phase):
         assert abs(b.rho_molar / a.rho_molar - 1.0) < 1e-3
+
+
+def _near_case(model, T, lnp, Tn, lnpn, key, q=None):
+    """The (p, h) or (p, s) state started from any neighbour equals the full flash (a batch of two, which
+    never uses the neighbour path): the neighbour is a warm start only, never the answer's source. The
+    target is the state at (T, p), or with ``q`` the two-phase state of vapour fraction q at p (< pc)."""
+    p, pn = float(np.exp(lnp)), float(np.exp(lnpn))
+    f = _fluid({"CO2": 1.0}, model)
+    try:
+        if q is not None and p < f.critical_point().p:
+            sat = f.saturation(p=p)
+            target = (1 - q) * getattr(sat.liquid, key) + q * getattr(sat.vapor, key)
+        else:
+            target = getattr(f.state(T=T, p=p), key)
+        nb = f.state(T=Tn, p=pn)
+        full = f.state(p=np.array([p, p]), **{key: np.array([target, target])})
+    except sc.SupercritError as exc:
+        assert str(exc)
+        return
+    try:
+        s = f.state(p=p, near=nb, **{key: float(target)})
+    except sc.SupercritError as exc:
+        raise AssertionError(f"the full flash succeeded but the neighbour-started one raised: {exc}") from None
+    assert str(s.phase) == str(full.phase[0])
+    assert float(s.T) == pytest.approx(float(full.T[0]), abs=1e-6)
+    assert float(s.rho_molar) == pytest.approx(float(full.rho_molar[0]), rel=1e-6)
+    if str(s.phase) != "supercritical":
+        assert float(s.vapor_fraction) == pytest.approx(float(full.vapor_fraction[0]), abs=1e-7)
+
+
+# the whole range, and a box around CO2's critical point (294-314 K, 60-90 bar), where a neighbour on the
+# other side of the critical point is the hard case (a Newton from a dense supercritical neighbour can end
+# on the unstable root inside the dome)
+_WIDE = (st.floats(218.0, 450.0), st.floats(np.log(6e5), np.log(3e7)))
+_BOX = (st.floats(294.0, 314.0), st.floats(np.log(60e5), np.log(90e5)))
+NEAR_ARGS = dict(model=st.sampled_from(["span-wagner", "peng-robinson"]), T=st.one_of(_WIDE[0], _BOX[0]),
+                 lnp=st.one_of(_WIDE[1], _BOX[1]), Tn=st.one_of(_WIDE[0], _BOX[0]),
+                 lnpn=st.one_of(_WIDE[1], _BOX[1]), key=st.sampled_from(["h", "s"]),
+                 q=st.one_of(st.none(), st.floats(1e-3, 1.0 - 1e-3)))  # q = 0, 1: labels ambiguous
+
+
+@FAST
+@given(**NEAR_ARGS)
+def test_neighbour_started_states_equal_the_full_flash(model, T, lnp, Tn, lnpn, key, q):
+    _near_case(model, T, lnp, Tn, lnpn, key, q)
+
+
+@pytest.mark.slow
+@LONG
+@given(**NEAR_ARGS)
+def test_neighbour_started_states_equal_the_full_flash_long(model, T, lnp, Tn, lnpn, key, q):
+    _near_case(model, T, lnp, Tn, lnpn, key, q)
+
+
+# two-phase targets just below CO2's critical pressure, neighbours anywhere around the critical point
+BOX_ARGS = dict(model=st.sampled_from(["span-wagner", "peng-robinson"]), T=_BOX[0],
+                lnp=st.floats(np.log(60e5), np.log(73.5e5)), Tn=_BOX[0], lnpn=_BOX[1],
+                key=st.sampled_from(["h", "s"]), q=st.floats(1e-3, 1.0 - 1e-3))
+
+
+@FAST
+@given(**BOX_ARGS)
+def test_neighbour_started_two_phase_states_near_the_critical_point(model, T, lnp, Tn, lnpn, key, q):
+    _near_case(model, T, lnp, Tn, lnpn, key, q)
+
+
+@pytest.mark.slow
+@LONG
+@given(**BOX_ARGS)
+def test_neighbour_started_two_phase_states_near_the_critical_point_long(model, T, lnp, Tn, lnpn, key, q):
+    _near_case(model, T, lnp, Tn, lnpn, key, q)
