@@ -4,10 +4,10 @@ Public contract: :class:`Fluid` (state, saturation, critical_point), :class:`Pha
 error hierarchy in :mod:`supercrit.errors`.
 """
 from .errors import (ConvergenceError, DataError, InputError, ModelRangeError, PropertyUndefinedError,
-                     SupercritError)
+                     SecondLiquidError, SupercritError)
 from .thermo.fluid import Fluid
 from .thermo.state import Phase, State
 
 __version__ = "0.1.0"
 __all__ = ["Fluid", "Phase", "State", "SupercritError", "InputError", "DataError", "ModelRangeError",
-           "ConvergenceError", "PropertyUndefinedError", "__version__"]
+           "ConvergenceError", "SecondLiquidError", "PropertyUndefinedError", "__version__"]

@@ -44,5 +44,10 @@ class ConvergenceError(SupercritError, ArithmeticError):
         super().__init__(message)
 
 
+class SecondLiquidError(ConvergenceError):
+    """A second liquid phase appears (liquid-liquid split or a three-phase region): the vapour-liquid flash
+    does not describe the state, so no state is returned; the message names the second liquid."""
+
+
 class PropertyUndefinedError(SupercritError, ValueError):
     """A property asked of a state where it has no single value (e.g. cp inside the two-phase dome)."""

@@ -7,8 +7,10 @@ inside, then Newton on the Gibbs energy in the vapour mole numbers; if that Newt
 converge monotonically, substitution goes on (dominant-eigenvalue (GDEM) acceleration every fifth
 step) and Newton takes over after twelve steps (near the critical point). Every two-phase answer passes the guards before it is returned:
 |ln K| not all near 0, distinct phase densities, material balance, Gibbs energy below the single
-phase; a split that fails them is reported as the single phase. A second liquid (the liquid
-itself unstable) raises ConvergenceError naming it: three-phase equilibrium is not computed.
+phase; a split that fails them is reported as the single phase. Vapour-liquid only: a split whose
+lighter phase is liquid-like (phase identification parameter above 1 below its pseudo-critical
+temperature), or whose liquid or vapour is itself unstable with a liquid-like trial phase (a third
+phase), raises SecondLiquidError naming the second liquid; three-phase equilibrium is not computed.
 
 References: Michelsen, Fluid Phase Equilib. 9 (1982) 21-40 (phase split, GDEM),
 doi:10.1016/0378-3812(82)85002-4; Rachford & Rice, J. Pet. Technol. 4 (1952) 19;
@@ -30,7 +32,7 @@ from operator import mul as _mul
 
 import numpy as np
 
-from ...errors import ConvergenceError
+from ...errors import SecondLiquidError
 from ..properties import phase_identification_parameter
 from .result import SolverReport
 from .stability import _stability_lists, solve_dense
@@ -65,10 +67,6 @@ class FlashResult:
     @property
     def two_phase(self) -> bool:
         return self.beta is not None
-
-
-class SecondLiquidError(ConvergenceError):
-    """A second liquid phase appears (liquid-liquid or three-phase region): not computed here."""
 
 
 def rachford_rice(z, K, tol=1e-14, max_iter=60, beta0=0.5):
@@ -344,7 +342,7 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
     kern : CubicPhaseKernel, optional
         The model's phase kernel at T (default ``model.phase_kernel(T)``).
     check_second_liquid : bool
-        Test the liquid of a split for a second liquid phase (ConvergenceError if found).
+        Test the split for a second liquid phase (SecondLiquidError if found).
 
     Returns
     -------
@@ -428,7 +426,7 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
             f"liquid-liquid equilibrium is not reported as vapour-liquid and is not computed by supercrit. "
             f"Treat this state as unsafe (free second liquid, e.g. water). Mole fractions of the lighter "
             f"liquid: " + ", ".join(f"{n} {v:.4f}" for n, v in zip(model.components, yl)) + ".",
-            SolverReport(False, iters + it, 0.0, "VLE flash: both phases liquid-like"))
+            SolverReport(True, iters + it, 0.0, "VLE flash: both phases liquid-like"))
     # second-liquid check: near-pure trials on the liquid for components that are subcritical
     # (T < Tc) and not already dominant in it (common practice: only these can form their own liquid)
     xl = x.tolist()
@@ -446,7 +444,7 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
                 f"flash at T = {T:.3f} K, p = {p / 1e5:.4f} bar: the liquid splits again into two liquids "
                 f"(tangent-plane distance {s2.tm_min:.2e}); a three-phase (L-L-V) region is not computed by "
                 f"supercrit. Treat this state as unsafe (free second liquid, e.g. water).",
-                SolverReport(False, iters + it, s2.tm_min, "VLE flash + stability of the liquid"))
+                SolverReport(True, iters + it + s2.iterations, s2.tm_min, "VLE flash + stability of the liquid"))
     # the same check on the vapour: a liquid-like trial phase other than the split's liquid that lowers the
     # vapour's Gibbs energy means a third phase (e.g. an ethanol-rich liquid condensing from a vapour that
     # is in equilibrium with a water-rich one): the two-phase answer is not the equilibrium
@@ -467,7 +465,7 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
                 f"fractions " + ", ".join(f"{n} {v:.4f}" for n, v in zip(model.components, s3.w.tolist()))
                 + "; a three-phase (L-L-V) region is not computed by supercrit. Treat this state as unsafe "
                 "(free second liquid).",
-                SolverReport(False, iters + it + s3.iterations, s3.tm_min, "VLE flash + stability of the vapour"))
+                SolverReport(True, iters + it + s3.iterations, s3.tm_min, "VLE flash + stability of the vapour"))
     return FlashResult(T, p, z, float(beta), x, y, y / x, float(rho_x), float(rho_y), None, None, st.tm_min,
                        SolverReport(True, iters + it, 0.0, method))
 
