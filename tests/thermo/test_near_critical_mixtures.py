@@ -156,3 +156,13 @@ def test_envelope_fills_the_gap_at_the_critical_point(fluids):
     assert np.max(np.abs(env.lnK[i - 1])) < 2e-3 and np.max(np.abs(env.lnK[i])) < 2e-3
     c = f.critical_point()
     assert env.critical.T == c.T and env.critical.p == c.p
+
+
+def test_critical_point_newton_stays_above_the_co_volume():
+    """Found by the long fuzz (tests/reliability, -m slow): CO2/O2/ethane/butane 0.489/0.489/0.011/0.011.
+    The Heidemann-Khalil Newton of the envelope's critical point stepped to a volume below the co-volume B
+    and ended in a bare math domain error (log of a negative number) instead of a critical point."""
+    f = Fluid({"C4H10": 0.010785, "CO2": 0.489215, "C2H6": 0.010785, "O2": 0.48921499999999996})
+    env = f.envelope()
+    assert 200.0 < env.critical.T < 250.0 and env.critical.p > 1e7
+    assert str(f.state(T=217.0, p=math.exp(12.0)).phase) == "gas"

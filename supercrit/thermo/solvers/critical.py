@@ -16,6 +16,8 @@ when started far from a critical point; the envelope's estimate is a good start.
 """
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from ...errors import ConvergenceError
@@ -70,6 +72,7 @@ def critical_point_hk(model, z, T0, p0, tol_lam=1e-10, max_iter=50):
     kern = model.phase_kernel(T0)
     Z = kern.ln_phi(z, p0, "stable")[1]
     T, lnV = float(T0), float(np.log(Z * kern.RT / p0))
+    lnB = math.log(float(kern.b @ z))  # the volume stays above the co-volume B (b does not depend on T)
     res = np.inf
     for it in range(1, max_iter + 1):
         F = np.array(_criteria(model, T, np.exp(lnV), z))
@@ -87,7 +90,8 @@ def critical_point_hk(model, z, T0, p0, tol_lam=1e-10, max_iter=50):
         d[0] = np.clip(d[0], -0.1 * T, 0.1 * T)
         d[1] = np.clip(d[1], -0.3, 0.3)
         T += d[0]
-        lnV += d[1]
+        # a step to or below the co-volume (no fluid there) goes halfway to it instead
+        lnV = lnV + d[1] if lnV + d[1] > lnB + 1e-6 else 0.5 * (lnV + lnB + 1e-6)
         if abs(d[0]) < 1e-10 * T and abs(d[1]) < 1e-12:
             F = np.array(_criteria(model, T, np.exp(lnV), z))
             res = float(np.max(np.abs(F)))
