@@ -241,3 +241,18 @@ def test_three_phase_state_is_reported_not_returned_as_vapour_liquid():
         assert r.two_phase and r.x[2] > 0.85  # water-rich liquid, N2-rich vapour
         with pytest.raises(SecondLiquidError, match="second liquid forms"):
             flash_Tp(f.model, T, p, f.x, Tc, pc, w)
+
+
+def test_hydrocarbon_liquid_condensing_beside_water_is_a_second_liquid():
+    """N2/water/propane 0.3/0.35/0.35 at 250 K, 10 bar: the vapour-liquid split is N2 + propane vapour over
+    liquid water, but that vapour holds 54 % propane, 5.4 bar against propane's vapour pressure of about
+    2.2 bar at 250 K (from memory): a propane-rich liquid condenses as a third phase. The vapour's main
+    component must be among its trial phases (the split's liquid is water, not propane)."""
+    from supercrit.errors import SecondLiquidError
+
+    f = Fluid({"N2": 0.3, "H2O": 0.35, "C3H8": 0.35})
+    Tc, pc, w = consts(f)
+    r = flash_Tp(f.model, 250.0, 10e5, f.x, Tc, pc, w, check_second_liquid=False)
+    assert r.two_phase and r.y[2] > 0.5 and r.x[1] > 0.99
+    with pytest.raises(SecondLiquidError, match=r"vapour of the vapour-liquid split is itself unstable.*C3H8 0\.9"):
+        flash_Tp(f.model, 250.0, 10e5, f.x, Tc, pc, w)

@@ -351,7 +351,8 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
     Raises
     ------
     SecondLiquidError
-        The liquid of the vapour-liquid split is itself unstable (liquid-liquid split).
+        The split is into two liquids (its lighter phase is liquid-like), or its liquid or its vapour is
+        itself unstable with a liquid-like trial phase (a second liquid: three phases).
     """
     T, p = float(T), float(p)
     z = np.asarray(z, dtype=float)
@@ -427,47 +428,46 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
             f"Treat this state as unsafe (free second liquid, e.g. water). Mole fractions of the lighter "
             f"liquid: " + ", ".join(f"{n} {v:.4f}" for n, v in zip(model.components, yl)) + ".",
             SolverReport(True, iters + it, 0.0, "VLE flash: both phases liquid-like"))
-    # second-liquid check: near-pure trials on the liquid for components that are subcritical
-    # (T < Tc) and not already dominant in it (common practice: only these can form their own liquid)
-    xl = x.tolist()
-    cand = [i for i in range(nc) if T < Tcl[i] and xl[i] < 0.5 and zl[i] > 0]
-    if check_second_liquid and nc > 1 and cand:
-        lpl, Zl, _ = kern.ln_phi_list(xl, p, "stable")
-        trials = []
-        for i in cand:
-            t = [1e-3 * v for v in xl]
-            t[i] = 1.0
-            trials.append(t)
-        s2 = _stability_lists(kern, xl, p, trials, lpl, Zl)
-        if not s2.stable and not s2.w_is_vapor and np.sum((s2.w - y) ** 2) > 1e-6:
-            raise SecondLiquidError(
-                f"flash at T = {T:.3f} K, p = {p / 1e5:.4f} bar: the liquid splits again into two liquids "
-                f"(tangent-plane distance {s2.tm_min:.2e}); a three-phase (L-L-V) region is not computed by "
-                f"supercrit. Treat this state as unsafe (free second liquid, e.g. water).",
-                SolverReport(True, iters + it + s2.iterations, s2.tm_min, "VLE flash + stability of the liquid"))
-    # the same check on the vapour: a liquid-like trial phase other than the split's liquid that lowers the
-    # vapour's Gibbs energy means a third phase (e.g. an ethanol-rich liquid condensing from a vapour that
-    # is in equilibrium with a water-rich one): the two-phase answer is not the equilibrium
-    yl = y.tolist()
-    cand = [i for i in range(nc) if T < Tcl[i] and yl[i] < 0.5 and zl[i] > 0]
-    if check_second_liquid and nc > 1 and cand:
-        lpv, Zv, _ = kern.ln_phi_list(yl, p, "stable")
-        trials = []
-        for i in cand:
-            t = [1e-3 * v for v in yl]
-            t[i] = 1.0
-            trials.append(t)
-        s3 = _stability_lists(kern, yl, p, trials, lpv, Zv)
-        if not s3.stable and not s3.w_is_vapor and np.sum((s3.w - x) ** 2) > 1e-6:
-            raise SecondLiquidError(
-                f"flash at T = {T:.3f} K, p = {p / 1e5:.4f} bar: the vapour of the vapour-liquid split is "
-                f"itself unstable (tangent-plane distance {s3.tm_min:.2e}): a second liquid forms, with mole "
-                f"fractions " + ", ".join(f"{n} {v:.4f}" for n, v in zip(model.components, s3.w.tolist()))
-                + "; a three-phase (L-L-V) region is not computed by supercrit. Treat this state as unsafe "
-                "(free second liquid).",
-                SolverReport(True, iters + it + s3.iterations, s3.tm_min, "VLE flash + stability of the vapour"))
+    if check_second_liquid and nc > 1:
+        # a phase of the split that is itself unstable with a liquid-like trial phase other than the split's
+        # other phase means a second liquid: the liquid splits again (L-L-V), or a liquid condenses from the
+        # vapour (e.g. ethanol-rich beside a water-rich liquid); the two-phase answer is not the equilibrium
+        names = model.components
+        for phase, other, what in ((x, y, "liquid"), (y, x, "vapour")):
+            s2 = _second_liquid_trial(kern, phase.tolist(), other, zl, p, T, Tcl, vapour=what == "vapour")
+            if s2 is not None:
+                raise SecondLiquidError(
+                    f"flash at T = {T:.3f} K, p = {p / 1e5:.4f} bar: the {what} of the vapour-liquid split is "
+                    f"itself unstable (tangent-plane distance {s2.tm_min:.2e}): a second liquid forms, with mole "
+                    f"fractions " + ", ".join(f"{n} {v:.4f}" for n, v in zip(names, s2.w.tolist()))
+                    + "; a three-phase (L-L-V) region is not computed by supercrit. Treat this state as unsafe "
+                    "(free second liquid, e.g. water).",
+                    SolverReport(True, iters + it + s2.iterations, s2.tm_min, f"VLE flash + stability of the {what}"))
     return FlashResult(T, p, z, float(beta), x, y, y / x, float(rho_x), float(rho_y), None, None, st.tm_min,
                        SolverReport(True, iters + it, 0.0, method))
+
+
+def _second_liquid_trial(kern, xl, other, z, p, T, Tc, vapour=False):
+    """The stability test of one phase (mole fractions ``xl``) of a split with near-pure trial phases of
+    the components that are subcritical (T < Tc) (common practice: only these can form their own liquid)
+    and not already dominant in the liquid: for the liquid itself that trial is the phase; for the
+    vapour (``vapour``), which may condense a liquid of its own main component, it would land on the
+    split's liquid. Returns the test's answer when it finds a liquid-like trial phase that lowers the
+    Gibbs energy and is not the split's ``other`` phase, else None."""
+    liq = other.tolist() if vapour else xl
+    cand = [i for i in range(len(xl)) if T < Tc[i] and liq[i] < 0.5 and z[i] > 0]
+    if not cand:
+        return None
+    lp, Zp, _ = kern.ln_phi_list(xl, p, "stable")
+    trials = []
+    for i in cand:
+        t = [1e-3 * v for v in xl]
+        t[i] = 1.0
+        trials.append(t)
+    s2 = _stability_lists(kern, xl, p, trials, lp, Zp)
+    if not s2.stable and not s2.w_is_vapor and np.sum((s2.w - other) ** 2) > 1e-6:
+        return s2
+    return None
 
 
 def _is_liquid_like(model, T, p, y, rho_y, Tc) -> bool:
