@@ -50,6 +50,23 @@ def _check_state(f, st_, T, p):
         # the split lowers the Gibbs energy below the single phase of the feed at the same T and p
         g_split = (1 - q) * L.g + q * V.g
         assert g_split <= _single_phase_g(f, T, p) + 1e-6 * abs(g_split) + 1e-6
+        # and it is the equilibrium: no phase lies below its tangent plane (an independent stability test of
+        # the liquid with Wilson trials from both phases and a near-pure trial of every component)
+        _assert_phases_stable(f, T, p, L, V)
+
+
+def _assert_phases_stable(f, T, p, L, V):
+    from supercrit.thermo.mixture import _consts
+    from supercrit.thermo.solvers.stability import stability_test, wilson_K
+
+    Tc, pc, w = _consts(f)
+    K = wilson_K(T, p, Tc, pc, w)
+    kern = f.model.phase_kernel(T)
+    x = np.array([L.composition[c] for c in f.components])
+    y = np.array([V.composition[c] for c in f.components])
+    r = stability_test(kern, x, p, K, extra_trials=[y * K, y / K])
+    assert r.stable or r.tm_min > -1e-7 or float(np.sum((r.w - y) ** 2)) < 1e-6, \
+        f"a phase of the split is unstable (tm = {r.tm_min:.3g}, trial {np.round(r.w, 4).tolist()})"
 
 
 def _single_phase_g(f, T, p):

@@ -429,43 +429,49 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
             f"liquid: " + ", ".join(f"{n} {v:.4f}" for n, v in zip(model.components, yl)) + ".",
             SolverReport(True, iters + it, 0.0, "VLE flash: both phases liquid-like"))
     if check_second_liquid and nc > 1:
-        # a phase of the split that is itself unstable with a liquid-like trial phase other than the split's
-        # other phase means a second liquid: the liquid splits again (L-L-V), or a liquid condenses from the
-        # vapour (e.g. ethanol-rich beside a water-rich liquid); the two-phase answer is not the equilibrium
-        names = model.components
-        for phase, other, what in ((x, y, "liquid"), (y, x, "vapour")):
-            s2 = _second_liquid_trial(kern, phase.tolist(), other, zl, p, T, Tcl, vapour=what == "vapour")
-            if s2 is not None:
-                raise SecondLiquidError(
-                    f"flash at T = {T:.3f} K, p = {p / 1e5:.4f} bar: the {what} of the vapour-liquid split is "
-                    f"itself unstable (tangent-plane distance {s2.tm_min:.2e}): a second liquid forms, with mole "
-                    f"fractions " + ", ".join(f"{n} {v:.4f}" for n, v in zip(names, s2.w.tolist()))
-                    + "; a three-phase (L-L-V) region is not computed by supercrit. Treat this state as unsafe "
-                    "(free second liquid, e.g. water).",
-                    SolverReport(True, iters + it + s2.iterations, s2.tm_min, f"VLE flash + stability of the {what}"))
+        # a phase of the split that is itself unstable with a trial phase other than the split's other phase
+        # means a third phase: the liquid splits again (L-L-V), a liquid condenses from the vapour (e.g.
+        # ethanol-rich beside a water-rich liquid), or a gas leaves a dense phase (H2 over two liquids); the
+        # two-phase answer is then not the equilibrium
+        s2 = _third_phase_trial(kern, x.tolist(), y.tolist(), zl, p, T, Tcl, Kw)
+        if s2 is not None:
+            # a gas if the third phase is at least as expanded as the split's vapour, else a second liquid
+            Zw, Zv = kern.ln_phi_list(s2.w.tolist(), p, "stable")[1], kern.ln_phi_list(y.tolist(), p, "stable")[1]
+            kind = "a gas" if Zw >= Zv else "a second liquid"
+            raise SecondLiquidError(
+                f"flash at T = {T:.3f} K, p = {p / 1e5:.4f} bar: the phases of the vapour-liquid split are not "
+                f"stable (tangent-plane distance {s2.tm_min:.2e}): a third phase forms ({kind}, mole fractions "
+                + ", ".join(f"{n} {v:.4f}" for n, v in zip(model.components, s2.w.tolist()))
+                + "); a three-phase (L-L-V) region is not computed by supercrit. Treat this state as unsafe "
+                "(free second liquid, e.g. water).",
+                SolverReport(True, iters + it + s2.iterations, s2.tm_min, "VLE flash + stability of its phases"))
     return FlashResult(T, p, z, float(beta), x, y, y / x, float(rho_x), float(rho_y), None, None, st.tm_min,
                        SolverReport(True, iters + it, 0.0, method))
 
 
-def _second_liquid_trial(kern, xl, other, z, p, T, Tc, vapour=False):
-    """The stability test of one phase (mole fractions ``xl``) of a split with near-pure trial phases of
-    the components that are subcritical (T < Tc) (common practice: only these can form their own liquid)
-    and not already dominant in the liquid: for the liquid itself that trial is the phase; for the
-    vapour (``vapour``), which may condense a liquid of its own main component, it would land on the
-    split's liquid. Returns the test's answer when it finds a liquid-like trial phase that lowers the
-    Gibbs energy and is not the split's ``other`` phase, else None."""
-    liq = other.tolist() if vapour else xl
-    cand = [i for i in range(len(xl)) if T < Tc[i] and liq[i] < 0.5 and z[i] > 0]
-    if not cand:
+def _third_phase_trial(kern, xl, yl, z, p, T, Tc, Kw):
+    """The stability test of the split's liquid ``xl`` (the vapour ``yl`` lies on the same tangent plane,
+    so one test serves both phases). Trial phases: Wilson vapour-like and liquid-like trials from the
+    vapour (a gas leaving a dense vapour, heavy components condensing from it; only with two or more
+    subcritical components) and near-pure trials of the
+    components that are subcritical (T < Tc) (common practice: only these can form their own liquid) and
+    not already dominant in the liquid (that trial would be the liquid itself). A trial reaching the
+    vapour stops there (tm = 0). Returns the test's answer when a trial phase lowers the Gibbs energy
+    below the split's tangent plane and is not the vapour (a third phase), else None."""
+    # the Wilson trials only where two components are subcritical: a third phase needs a second
+    # condensable component (common practice); they roughly double the cost of a stable split's check
+    n_cond = sum(1 for i in range(len(xl)) if T < Tc[i] and z[i] > 0)
+    trials = [[yi * k for yi, k in zip(yl, Kw)], [yi / k for yi, k in zip(yl, Kw)]] if n_cond >= 2 else []
+    for i in range(len(xl)):
+        if T < Tc[i] and xl[i] < 0.5 and z[i] > 0:
+            t = [1e-3 * v for v in xl]
+            t[i] = 1.0
+            trials.append(t)
+    if not trials:
         return None
     lp, Zp, _ = kern.ln_phi_list(xl, p, "stable")
-    trials = []
-    for i in cand:
-        t = [1e-3 * v for v in xl]
-        t[i] = 1.0
-        trials.append(t)
-    s2 = _stability_lists(kern, xl, p, trials, lp, Zp)
-    if not s2.stable and not s2.w_is_vapor and np.sum((s2.w - other) ** 2) > 1e-6:
+    s2 = _stability_lists(kern, xl, p, trials, lp, Zp, known=(yl,))
+    if not s2.stable and sum([(wi - yi) ** 2 for wi, yi in zip(s2.w.tolist(), yl)]) > 1e-6:
         return s2
     return None
 

@@ -102,11 +102,12 @@ def _eliminator(n: int, m: int):
     return scope["eliminate"]
 
 
-def _trial(kern, d, p, W, z, ss_iter=40, newton_iter=30):
+def _trial(kern, d, p, W, z, ss_iter=40, newton_iter=30, known=()):
     """Minimise tm from trial mole numbers W (lists); returns (tm, w, Z_w, iterations).
 
-    Stops early once tm < TM_TOL (instability proven), when w collapses onto z (trivial), or when
-    substitution converges; slow substitution continues with Newton steps.
+    Stops early once tm < TM_TOL (instability proven), when w collapses onto z (trivial) or onto one of
+    the ``known`` compositions (phases in equilibrium with z, where tm = 0), or when substitution
+    converges; slow substitution continues with Newton steps.
     """
     exp = math.exp
     lnW = [math.log(v) for v in W]
@@ -122,6 +123,8 @@ def _trial(kern, d, p, W, z, ss_iter=40, newton_iter=30):
         if tm < TM_TOL and it > 1:
             return tm, w, Zw, it
         if sum([(wi - zi) ** 2 for wi, zi in zip(w, z)]) < 1e-8:  # collapsing onto the tested phase: trivial
+            return tm, w, Zw, it
+        if known and any(sum([(wi - ki) ** 2 for wi, ki in zip(w, k)]) < 1e-8 for k in known):
             return tm, w, Zw, it
         step = max([abs(nw - lw) for nw, lw in zip(new, lnW)])
         lnW = new
@@ -220,11 +223,12 @@ def stability_test(kern, z, p, K_wilson, lnphi_z=None, Z_z=None, pure_trials=Tru
                             len(trials) if first_unstable else 0)
 
 
-def _stability_lists(kern, zl, p, trials, lpz, Z_z, skippable=0):
+def _stability_lists(kern, zl, p, trials, lpz, Z_z, skippable=0, known=()):
     """:func:`stability_test` on lists: z, the trial phases (mole numbers) and ln phi(z).
 
     Of the first ``skippable`` trials, those after one that proves instability are left out (the
-    result then has ``complete=False``); the trials after them always run, and the lowest tm wins."""
+    result then has ``complete=False``); the trials after them always run, and the lowest tm wins.
+    ``known``: compositions in equilibrium with z (tm = 0 there); a trial reaching one of them stops."""
     subset = not all(v > 0 for v in zl)
     if subset:
         d = [math.log(zi) + li if zi > 0 else -math.inf for zi, li in zip(zl, lpz)]
@@ -248,7 +252,7 @@ def _stability_lists(kern, zl, p, trials, lpz, Z_z, skippable=0):
             tm, w, Zw, it = _trial_subset(kern, np.array(d), p, np.array(W), np.array(zl) > 0)
             w = w.tolist()
         else:
-            tm, w, Zw, it = _trial(kern, d, p, W, zl)
+            tm, w, Zw, it = _trial(kern, d, p, W, zl, known=known)
         iters += it
         if sum([(wi - zi) ** 2 for wi, zi in zip(w, zl)]) < 1e-10:  # collapsed onto the tested phase: trivial
             continue
