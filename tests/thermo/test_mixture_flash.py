@@ -271,3 +271,21 @@ def test_gas_leaving_a_dense_hydrocarbon_phase_is_a_third_phase():
     assert r.two_phase
     with pytest.raises(SecondLiquidError, match=r"third phase forms \(a gas"):
         flash_Tp(f.model, 222.73, 150.563e5, f.x, Tc, pc, w)
+
+
+def test_water_liquid_splitting_from_a_water_ethanol_liquid_is_a_third_phase():
+    """Found by the long fuzz (tests/reliability, -m slow): CO2/N2/ethanol/water 0.098/0.098/0.390/0.415 at
+    373 K, e^14 Pa. The split's liquid holds 51 % water and 47 % ethanol; in this model it splits again into
+    a 99 % water liquid. The near-pure water trial was left out because water was over half of the
+    liquid (the cut is now 90 %)."""
+    import math
+
+    from supercrit.errors import SecondLiquidError
+
+    f = Fluid({"CO2": 0.097561, "N2": 0.097561, "C2H5OH": 0.390244, "H2O": 0.41463400000000006})
+    Tc, pc, w = consts(f)
+    p = math.exp(14.0)
+    r = flash_Tp(f.model, 373.0, p, f.x, Tc, pc, w, check_second_liquid=False)
+    assert r.two_phase and 0.5 < r.x[3] < 0.9
+    with pytest.raises(SecondLiquidError, match=r"third phase forms \(a second liquid.*H2O 0\.99"):
+        flash_Tp(f.model, 373.0, p, f.x, Tc, pc, w)
