@@ -9,8 +9,8 @@ step) and Newton takes over after twelve steps (near the critical point). Every 
 |ln K| not all near 0, distinct phase densities, material balance, Gibbs energy below the single
 phase; a split that fails them is reported as the single phase. Vapour-liquid only: a split whose
 lighter phase is liquid-like (phase identification parameter above 1 below its pseudo-critical
-temperature), or whose liquid or vapour is itself unstable with a liquid-like trial phase (a third
-phase), raises SecondLiquidError naming the second liquid; three-phase equilibrium is not computed.
+temperature), or whose phases are not stable (a third phase: a second liquid, or a gas leaving a
+dense phase), raises SecondLiquidError naming it; three-phase equilibrium is not computed.
 
 References: Michelsen, Fluid Phase Equilib. 9 (1982) 21-40 (phase split, GDEM),
 doi:10.1016/0378-3812(82)85002-4; Rachford & Rice, J. Pet. Technol. 4 (1952) 19;
