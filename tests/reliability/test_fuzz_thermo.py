@@ -195,8 +195,14 @@ def _near_case(model, T, lnp, Tn, lnpn, key, q=None):
     assert str(s.phase) == str(full.phase[0])
     assert float(s.T) == pytest.approx(float(full.T[0]), abs=1e-6)
     assert float(s.rho_molar) == pytest.approx(float(full.rho_molar[0]), rel=1e-6)
-    if str(s.phase) != "supercritical":
-        assert float(s.vapor_fraction) == pytest.approx(float(full.vapor_fraction[0]), abs=1e-7)
+    if str(s.phase) == "two-phase":
+        # the flashes solve h (or s) to ~1e-8 of its scale; just below pc, where h_V - h_L is small, that
+        # is a larger error in the vapour fraction (206 J/mol at 69 Pa below pc: 5e-7)
+        gap = abs(float(getattr(s.vapor, key)) - float(getattr(s.liquid, key)))
+        tol = 1e-7 + 1e-8 * (abs(float(target)) + 8.314 * (float(s.T) if key == "h" else 1.0)) / max(gap, 1e-300)
+        assert float(s.vapor_fraction) == pytest.approx(float(full.vapor_fraction[0]), abs=tol)
+    elif str(s.phase) != "supercritical":
+        assert float(s.vapor_fraction) == float(full.vapor_fraction[0])
 
 
 # the whole range, and a box around CO2's critical point (294-314 K, 60-90 bar), where a neighbour on the
