@@ -289,3 +289,20 @@ def test_water_liquid_splitting_from_a_water_ethanol_liquid_is_a_third_phase():
     assert r.two_phase and 0.5 < r.x[3] < 0.9
     with pytest.raises(SecondLiquidError, match=r"third phase forms \(a second liquid.*H2O 0\.99"):
         flash_Tp(f.model, 373.0, p, f.x, Tc, pc, w)
+
+
+def test_split_found_from_wilson_k_when_the_unstable_trial_start_fails():
+    """Found by the long fuzz (tests/reliability, -m slow): O2/propane/ethane/ethanol 0.30/0.08/0.60/0.02
+    at 277.93 K, 53.9 bar. The stability test proves the feed unstable with an ethanol-rich trial
+    (tm = -0.27), the split from that trial's K-values fails, and the flash called the feed a single gas;
+    a (p, h) flash started from a neighbour's K-values found the vapour-liquid split there instead (so
+    h(T) had two values and the round trip missed 278 K by 0.07 K). The Wilson start finds the split."""
+    import math
+
+    f = Fluid({"O2": 0.301887, "C3H8": 0.075472, "C2H6": 0.603774, "C2H5OH": 0.018866999999999967})
+    Tc, pc, w = consts(f)
+    p = math.exp(15.5)
+    r = flash_Tp(f.model, 277.9312364556679, p, f.x, Tc, pc, w)
+    assert r.two_phase and r.beta == pytest.approx(0.5163471305136, abs=1e-9)
+    st = f.state(T=278.0, p=p)
+    assert float(f.state(p=p, h=float(st.h)).T) == pytest.approx(278.0, abs=1e-6)

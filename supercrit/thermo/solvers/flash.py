@@ -391,7 +391,10 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
     if st.stable:
         return _single(kern, z, p, T, Zz, st.tm_min, iters, "stability: stable")
     out = None
-    starts = [st.K.tolist()]
+    # the unstable trial's K first; the Wilson K-values last (a split from a strongly non-ideal trial,
+    # e.g. an ethanol-rich liquid, can fail where the classic start finds the vapour-liquid split:
+    # O2/propane/ethane/ethanol at 277.9 K, 53.9 bar; found by the long fuzz)
+    starts = [st.K.tolist(), Kw]
     if K0l is not None:
         starts.insert(0, K0l)
     tried, outside = [], None
