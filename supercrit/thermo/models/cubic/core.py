@@ -493,8 +493,9 @@ def _nan_last(z):
     return (z != z, z)
 
 
-def _cubic_roots_scalar(a2: float, a1: float, a0: float) -> list:
-    """Real roots of z^3 + a2 z^2 + a1 z + a0 (Python floats, ascending), each polished by Newton steps."""
+def _cubic_raw_roots(a2: float, a1: float, a0: float) -> list:
+    """Real roots of z^3 + a2 z^2 + a1 z + a0 (Python floats, ascending), before polishing: Cardano's
+    form for one real root, the trigonometric form for three."""
     P = a1 - a2 * a2 / 3.0
     Q = 2.0 * a2 * a2 * a2 / 27.0 - a2 * a1 / 3.0 + a0
     D = 0.25 * Q * Q + P * P * P / 27.0
@@ -504,23 +505,29 @@ def _cubic_roots_scalar(a2: float, a1: float, a0: float) -> list:
         u, v = -0.5 * Q + sq, -0.5 * Q - sq
         u = u ** (1.0 / 3.0) if u >= 0.0 else -((-u) ** (1.0 / 3.0))
         v = v ** (1.0 / 3.0) if v >= 0.0 else -((-v) ** (1.0 / 3.0))
-        roots = [u + v + shift]
-    else:
-        r = 2.0 * _math.sqrt(-P / 3.0) if P < 0.0 else 0.0
-        arg = 3.0 * Q / (P * r) if r > 0.0 else 0.0
-        phi = _math.acos(-1.0 if arg < -1.0 else (1.0 if arg > 1.0 else arg)) / 3.0
-        t = 2.0 * _math.pi / 3.0
-        roots = [r * _math.cos(phi - t) + shift, r * _math.cos(phi - 2.0 * t) + shift, r * _math.cos(phi) + shift]
-        roots.sort()
-    out = []
-    for z in roots:
-        for _ in range(2):
-            df = (3.0 * z + 2.0 * a2) * z + a1
-            if df == 0.0:
-                break
-            z -= (((z + a2) * z + a1) * z + a0) / df
-        out.append(z)
-    return out
+        return [u + v + shift]
+    r = 2.0 * _math.sqrt(-P / 3.0) if P < 0.0 else 0.0
+    arg = 3.0 * Q / (P * r) if r > 0.0 else 0.0
+    phi = _math.acos(-1.0 if arg < -1.0 else (1.0 if arg > 1.0 else arg)) / 3.0
+    t = 2.0 * _math.pi / 3.0
+    roots = [r * _math.cos(phi - t) + shift, r * _math.cos(phi - 2.0 * t) + shift, r * _math.cos(phi) + shift]
+    roots.sort()
+    return roots
+
+
+def _polish_root(z: float, a2: float, a1: float, a0: float) -> float:
+    """Two Newton steps on z^3 + a2 z^2 + a1 z + a0 from z."""
+    for _ in range(2):
+        df = (3.0 * z + 2.0 * a2) * z + a1
+        if df == 0.0:
+            break
+        z -= (((z + a2) * z + a1) * z + a0) / df
+    return z
+
+
+def _cubic_roots_scalar(a2: float, a1: float, a0: float) -> list:
+    """Real roots of z^3 + a2 z^2 + a1 z + a0 (Python floats, ascending), each polished by Newton steps."""
+    return [_polish_root(z, a2, a1, a0) for z in _cubic_raw_roots(a2, a1, a0)]
 
 
 def __getattr__(name):

@@ -11,7 +11,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from .core import _cubic_roots_scalar
+from .core import _cubic_raw_roots, _cubic_roots_scalar, _polish_root
 
 if TYPE_CHECKING:
     from .core import CubicModel
@@ -140,57 +140,26 @@ class CubicPhaseKernel:
         return (zs[0] if gl < gv else zs[-1]), A, B
 
     def _pick_Z_inline(self, a, bm, p, phase):
-        """:meth:`pick_Z` written out in one function (the same arithmetic as :meth:`_roots`,
-        :func:`_cubic_roots_scalar` and :meth:`_gres`, step for step), for the list paths that call
-        it many times per flash."""
+        """:meth:`pick_Z` for the list paths that call it many times per flash: the same roots as
+        :meth:`_roots` (the middle one polished only when needed) and the choice of :meth:`_gres` as
+        one difference of logarithms."""
         RT = self.RT
         A, B = a * p / (RT * RT), bm * p / RT
         s, P = self.s, self.P
         a2 = (s - 1.0) * B - 1.0
         a1 = A + P * B * B - s * B * (B + 1.0)
         a0 = -(A * B + P * B * B * (B + 1.0))
-        Pc = a1 - a2 * a2 / 3.0
-        Q = 2.0 * a2 * a2 * a2 / 27.0 - a2 * a1 / 3.0 + a0
-        D = 0.25 * Q * Q + Pc * Pc * Pc / 27.0
-        shift = -a2 / 3.0
-        if D > 0.0:
-            sq = _math.sqrt(D)
-            u, v = -0.5 * Q + sq, -0.5 * Q - sq
-            u = u ** (1.0 / 3.0) if u >= 0.0 else -((-u) ** (1.0 / 3.0))
-            v = v ** (1.0 / 3.0) if v >= 0.0 else -((-v) ** (1.0 / 3.0))
-            z = u + v + shift
-            for _ in range(2):
-                df = (3.0 * z + 2.0 * a2) * z + a1
-                if df == 0.0:
-                    break
-                z -= (((z + a2) * z + a1) * z + a0) / df
+        roots = _cubic_raw_roots(a2, a1, a0)
+        if len(roots) == 1:
+            z = _polish_root(roots[0], a2, a1, a0)
             if not z > B:
                 raise ArithmeticError("no volume root above the co-volume")
             return z, A, B
-        # three real roots: the trigonometric form; the middle root is polished only if it is needed
-        r = 2.0 * _math.sqrt(-Pc / 3.0) if Pc < 0.0 else 0.0
-        arg = 3.0 * Q / (Pc * r) if r > 0.0 else 0.0
-        phi = _math.acos(-1.0 if arg < -1.0 else (1.0 if arg > 1.0 else arg)) / 3.0
-        t = 2.0 * _math.pi / 3.0
-        roots = sorted([r * _math.cos(phi - t) + shift, r * _math.cos(phi - 2.0 * t) + shift,
-                        r * _math.cos(phi) + shift])
-        zs = []
-        for k in ((0, 2) if phase == "stable" else ((2,) if phase == "vap" else (0, 2))):
-            z = roots[k]
-            for _ in range(2):
-                df = (3.0 * z + 2.0 * a2) * z + a1
-                if df == 0.0:
-                    break
-                z -= (((z + a2) * z + a1) * z + a0) / df
-            roots[k] = z
+        # three real roots: the middle root is polished only if it is needed
+        for k in ((2,) if phase == "vap" else (0, 2)):
+            roots[k] = _polish_root(roots[k], a2, a1, a0)
         if not roots[0] > B and phase != "vap":
-            z = roots[1]
-            for _ in range(2):
-                df = (3.0 * z + 2.0 * a2) * z + a1
-                if df == 0.0:
-                    break
-                z -= (((z + a2) * z + a1) * z + a0) / df
-            roots[1] = z
+            roots[1] = _polish_root(roots[1], a2, a1, a0)
             zs = [z for z in roots if z > B]
         else:
             zs = [z for z in (roots[0], roots[2]) if z > B]
