@@ -427,6 +427,7 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
     rho_y = kern.density(y, Zy * RT / p)
     if rho_x < rho_y:  # label the denser phase liquid
         x, y, rho_x, rho_y, beta = y, x, rho_y, rho_x, 1.0 - beta
+        lpx, lpy, Zx, Zy = lpy, lpx, Zy, Zx
     if check_second_liquid and _is_liquid_like(model, T, p, y, rho_y, Tcl):
         yl = y.tolist()
         raise SecondLiquidError(
@@ -441,11 +442,10 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
         # means a third phase: the liquid splits again (L-L-V), a liquid condenses from the vapour (e.g.
         # ethanol-rich beside a water-rich liquid), or a gas leaves a dense phase (H2 over two liquids); the
         # two-phase answer is then not the equilibrium
-        s2 = _third_phase_trial(kern, x.tolist(), y.tolist(), zl, p, T, Tcl, Kw)
+        s2 = _third_phase_trial(kern, x.tolist(), y.tolist(), lpx, Zx, zl, p, T, Tcl, Kw)
         if s2 is not None:
             # a gas if the third phase is at least as expanded as the split's vapour, else a second liquid
-            Zw, Zv = kern.ln_phi_list(s2.w.tolist(), p, "stable")[1], kern.ln_phi_list(y.tolist(), p, "stable")[1]
-            kind = "a gas" if Zw >= Zv else "a second liquid"
+            kind = "a gas" if kern.ln_phi_list(s2.w.tolist(), p, "stable")[1] >= Zy else "a second liquid"
             raise SecondLiquidError(
                 f"flash at T = {T:.3f} K, p = {p / 1e5:.4f} bar: the phases of the vapour-liquid split are not "
                 f"stable (tangent-plane distance {s2.tm_min:.2e}): a third phase forms ({kind}, mole fractions "
@@ -457,15 +457,15 @@ def flash_Tp(model, T, p, z, Tc, pc, omega, K0=None, kern=None, check_second_liq
                        SolverReport(True, iters + it, 0.0, method))
 
 
-def _third_phase_trial(kern, xl, yl, z, p, T, Tc, Kw):
-    """The stability test of the split's liquid ``xl`` (the vapour ``yl`` lies on the same tangent plane,
-    so one test serves both phases). Trial phases: Wilson vapour-like and liquid-like trials from the
-    vapour (a gas leaving a dense vapour, heavy components condensing from it; only with two or more
-    subcritical components) and near-pure trials of the components that are subcritical (T < Tc) (common
-    practice: only these can form their own liquid) and not already nearly all of the liquid (that trial
-    would be the liquid itself; NEAR_PURE_MAX). A trial reaching the vapour stops there (tm = 0). Returns
-    the test's answer when a trial phase lowers the Gibbs energy below the split's tangent plane and is
-    not the vapour (a third phase), else None."""
+def _third_phase_trial(kern, xl, yl, lp, Zp, z, p, T, Tc, Kw):
+    """The stability test of the split's liquid ``xl`` (its ln phi ``lp`` and Z ``Zp`` from the split; the
+    vapour ``yl`` lies on the same tangent plane, so one test serves both phases). Trial phases: Wilson
+    vapour-like and liquid-like trials from the vapour (a gas leaving a dense vapour, heavy components
+    condensing from it; only with two or more subcritical components) and near-pure trials of the components
+    that are subcritical (T < Tc) (common practice: only these can form their own liquid) and not already
+    nearly all of the liquid (that trial would be the liquid itself; NEAR_PURE_MAX). A trial reaching the
+    vapour stops there (tm = 0). Returns the test's answer when a trial phase lowers the Gibbs energy below
+    the split's tangent plane and is not the vapour (a third phase), else None."""
     # the Wilson trials only where two components are subcritical: a third phase needs a second
     # condensable component (common practice); they roughly double the cost of a stable split's check
     n_cond = sum(1 for i in range(len(xl)) if T < Tc[i] and z[i] > 0)
@@ -477,7 +477,6 @@ def _third_phase_trial(kern, xl, yl, z, p, T, Tc, Kw):
             trials.append(t)
     if not trials:
         return None
-    lp, Zp, _ = kern.ln_phi_list(xl, p, "stable")
     s2 = _stability_lists(kern, xl, p, trials, lp, Zp, known=(yl,))
     if not s2.stable and sum([(wi - yi) ** 2 for wi, yi in zip(s2.w.tolist(), yl)]) > 1e-6:
         return s2
