@@ -207,7 +207,7 @@ def _near_case(model, T, lnp, Tn, lnpn, key, q=None):
 
 # the whole range, and a box around CO2's critical point (294-314 K, 60-90 bar), where a neighbour on the
 # other side of the critical point is the hard case (a Newton from a dense supercritical neighbour can end
-# on the unstable root inside the dome)
+# on a spurious root inside the dome)
 _WIDE = (st.floats(218.0, 450.0), st.floats(np.log(6e5), np.log(3e7)))
 _BOX = (st.floats(294.0, 314.0), st.floats(np.log(60e5), np.log(90e5)))
 NEAR_ARGS = dict(model=st.sampled_from(["span-wagner", "peng-robinson"]), T=st.one_of(_WIDE[0], _BOX[0]),
@@ -216,33 +216,22 @@ NEAR_ARGS = dict(model=st.sampled_from(["span-wagner", "peng-robinson"]), T=st.o
                  q=st.one_of(st.none(), st.floats(1e-3, 1.0 - 1e-3)))  # q = 0, 1: labels ambiguous
 
 
-@FAST
-@given(**NEAR_ARGS)
-def test_neighbour_started_states_equal_the_full_flash(model, T, lnp, Tn, lnpn, key, q):
-    _near_case(model, T, lnp, Tn, lnpn, key, q)
-
-
-@pytest.mark.slow
-@LONG
-@given(**NEAR_ARGS)
-def test_neighbour_started_states_equal_the_full_flash_long(model, T, lnp, Tn, lnpn, key, q):
-    _near_case(model, T, lnp, Tn, lnpn, key, q)
-
-
 # two-phase targets just below CO2's critical pressure, neighbours anywhere around the critical point
 BOX_ARGS = dict(model=st.sampled_from(["span-wagner", "peng-robinson"]), T=_BOX[0],
                 lnp=st.floats(np.log(60e5), np.log(73.5e5)), Tn=_BOX[0], lnpn=_BOX[1],
                 key=st.sampled_from(["h", "s"]), q=st.floats(1e-3, 1.0 - 1e-3))
 
+NEIGHBOUR_CASES = st.one_of(st.fixed_dictionaries(NEAR_ARGS), st.fixed_dictionaries(BOX_ARGS))
 
-@FAST
-@given(**BOX_ARGS)
-def test_neighbour_started_two_phase_states_near_the_critical_point(model, T, lnp, Tn, lnpn, key, q):
-    _near_case(model, T, lnp, Tn, lnpn, key, q)
+
+@settings(FAST, max_examples=80)
+@given(case=NEIGHBOUR_CASES)
+def test_neighbour_started_states_equal_the_full_flash(case):
+    _near_case(**case)
 
 
 @pytest.mark.slow
-@LONG
-@given(**BOX_ARGS)
-def test_neighbour_started_two_phase_states_near_the_critical_point_long(model, T, lnp, Tn, lnpn, key, q):
-    _near_case(model, T, lnp, Tn, lnpn, key, q)
+@settings(LONG, max_examples=4000)
+@given(case=NEIGHBOUR_CASES)
+def test_neighbour_started_states_equal_the_full_flash_long(case):
+    _near_case(**case)

@@ -111,8 +111,9 @@ def test_isobar_walker_follows_the_state_cp():
 def test_near_start_from_a_dense_supercritical_neighbour_does_not_stop_inside_the_dome(model):
     """Found while checking the analysis of the bundled extraction sweep: an isenthalpic throttle path of
     CO2 (h = -8043 J/mol) from 76 bar, 305 K into the dome. From the dense supercritical neighbour the
-    Newton in (T, rho) ended on the unstable middle root (300.9 K, 68.1 bar, 10,230 mol/m3, between the
-    saturated densities 6,400 and 15,100) and the state was returned as gas, vapour fraction 1. The state
+    Newton in (T, rho) ended on a spurious root inside the dome (300.9 K, 68.1 bar, 10,230 mol/m3, between
+    the saturated densities 6,400 and 15,100, where Span-Wagner's loop has dp/drho > 0) and the state was
+    returned as gas, vapour fraction 1. The state
     must be the two-phase one of the full flash."""
     f = Fluid("CO2", model=model)
     h = -8043.214548195305
