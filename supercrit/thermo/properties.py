@@ -37,11 +37,12 @@ def dp_drho(model, T, rho, x):
 
 def phase_identification_parameter(model, T: float, rho: float, x) -> float:
     """Phase identification parameter Pi [-] of one state (Venkatarathnam & Oellrich, Fluid Phase Equilib.
-    301 (2011) 225-233): Pi = V [(d2p/dV dT)/(dp/dT)_V - (d2p/dV2)_T/(dp/dV)_T], written in density as
-    Pi = 2 - rho (d2p/drho dT)/(dp/dT) + rho (d2p/drho2)/(dp/drho). Pi > 1: liquid-like; Pi < 1: vapour-like
-    (the ideal gas has Pi = 1; a gas with a positive second virial coefficient also has Pi > 1, so callers
-    combine Pi with a temperature criterion). The second derivatives of p are central differences of the
-    analytic (dp/drho)_T (relative steps 1e-5 in rho and T).
+    301 (2011) 225-233, doi:10.1016/j.fluid.2010.12.001): Pi = V [(d2p/dV dT)/(dp/dT)_V -
+    (d2p/dV2)_T/(dp/dV)_T], written in density as Pi = 2 - rho (d2p/drho dT)/(dp/dT) + rho
+    (d2p/drho2)/(dp/drho). Pi > 1: liquid-like; Pi < 1: vapour-like (the ideal gas has Pi = 1; a gas with a
+    positive second virial coefficient also has Pi > 1, so callers combine Pi with a temperature criterion).
+    The second derivatives of p are central differences of the analytic (dp/drho)_T (relative steps 1e-5 in
+    rho and T).
     """
     T, rho = float(T), float(rho)
     x = np.asarray(x, dtype=float)

@@ -485,11 +485,12 @@ def _third_phase_trial(kern, xl, yl, lp, Zp, z, p, T, Tc, Kw):
 
 def _is_liquid_like(model, T, p, y, rho_y, Tc) -> bool:
     """Whether the lighter phase of a split is a liquid: the phase identification parameter Pi > 1
-    (Venkatarathnam & Oellrich, Fluid Phase Equilib. 301 (2011) 225) and T below the phase's
-    pseudo-critical temperature sum y_i Tc_i (Kay, Ind. Eng. Chem. 28 (1936) 1014; this excludes dense
-    supercritical fluids and gases with a positive second virial coefficient, which also have Pi > 1).
-    Pi is only evaluated when the phase is dense, Z < 0.5 (a cost filter: the vapours of vapour-liquid
-    splits in this tool's range have larger Z except close to a critical point; common practice)."""
+    (Venkatarathnam & Oellrich, Fluid Phase Equilib. 301 (2011) 225, doi:10.1016/j.fluid.2010.12.001) and T
+    below the phase's pseudo-critical temperature sum y_i Tc_i (Kay's rule; Kay, Ind. Eng. Chem. 28 (1936)
+    1014, citation from memory; this excludes dense supercritical fluids and gases with a positive second
+    virial coefficient, which also have Pi > 1). Pi is only evaluated when the phase is dense, Z < 0.5 (a
+    cost filter: the vapours of vapour-liquid splits in this tool's range have larger Z except close to a
+    critical point; common practice)."""
     yl = y.tolist()
     if T >= sum(yi * ti for yi, ti in zip(yl, Tc)):
         return False
