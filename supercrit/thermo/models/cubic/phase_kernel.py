@@ -118,31 +118,10 @@ class CubicPhaseKernel:
         zs = [z for z in zs if z > B]
         return zs, A, B
 
-    def _gres(self, Z, A, B):
-        """Residual Gibbs energy (g - g_ig(T, p))/RT of a root [-]."""
-
-        if self.d1 != self.d2:
-            L = math.log((Z + self.d1 * B) / (Z + self.d2 * B)) / (B * (self.d1 - self.d2))
-        else:
-            L = 1.0 / (Z + self.d1 * B)
-        return Z - 1.0 - math.log(Z - B) - A * L
-
     def pick_Z(self, a, bm, p, phase):
-        """Z of the chosen root: phase 'liq' (smallest), 'vap' (largest) or 'stable' (lowest g)."""
-        zs, A, B = self._roots(a, bm, p)
-        if not zs:
-            raise ArithmeticError("no volume root above the co-volume")
-        if len(zs) == 1 or phase == "vap":
-            return zs[-1], A, B
-        if phase == "liq":
-            return zs[0], A, B
-        gl, gv = self._gres(zs[0], A, B), self._gres(zs[-1], A, B)
-        return (zs[0] if gl < gv else zs[-1]), A, B
-
-    def _pick_Z_inline(self, a, bm, p, phase):
-        """:meth:`pick_Z` for the list paths that call it many times per flash: the same roots as
-        :meth:`_roots` (the middle one polished only when needed) and the choice of :meth:`_gres` as
-        one difference of logarithms."""
+        """Z of the chosen root: phase 'liq' (smallest), 'vap' (largest) or 'stable' (lowest residual Gibbs
+        energy, compared as one difference of logarithms). The roots are those of :meth:`_roots`; of three,
+        the middle one is polished only when it is needed."""
         RT = self.RT
         A, B = a * p / (RT * RT), bm * p / RT
         s, P = self.s, self.P
@@ -169,7 +148,7 @@ class CubicPhaseKernel:
             return zs[-1], A, B
         if phase == "liq":
             return zs[0], A, B
-        # the root of lower residual Gibbs energy (as _gres, written as one difference: two logarithms)
+        # the root of lower residual Gibbs energy g_res/RT = Z - 1 - ln(Z - B) - A L(Z), as one difference
         zl, zv = zs[0], zs[-1]
         d1, d2 = self.d1, self.d2
         if d1 != d2:
@@ -209,7 +188,7 @@ class CubicPhaseKernel:
         ax = mv(aij, xs)
         a = dot(xs, ax)
         bm = dot(b, xs)
-        Z, A, B = self._pick_Z_inline(a, bm, p, phase)
+        Z, A, B = self.pick_Z(a, bm, p, phase)
         d1, d2 = self.d1, self.d2
         if d1 != d2:
             L = math.log((Z + d1 * B) / (Z + d2 * B)) / (B * (d1 - d2))
@@ -326,7 +305,7 @@ class CubicPhaseKernel:
         ax = mv(aij, xs)
         a = dot(xs, ax)
         Bm = dot(b, xs)
-        Z, _, _ = self._pick_Z_inline(a, Bm, p, phase)
+        Z, _, _ = self.pick_Z(a, Bm, p, phase)
         V = Z * RT / p
         f, fV, fB, fVV, fVB, fBB, g, gV, gB, gBV, gBB, gVV = _volume_terms(V, Bm, self.d1, self.d2, R)
         D = a
