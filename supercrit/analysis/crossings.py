@@ -11,7 +11,10 @@ Boundaries:
   T(t) - Tc or p(t) - pc); otherwise (mixtures, other label changes) by bisection on t until the two
   bracketing states differ by less than 0.005 K and 500 Pa (the requirement is 0.01 K and 0.01 bar).
 - the pseudo-critical line (pure fluids above pc): T = T_pc(p), the temperature of maximum cp along
-  the isobar, found by bounded maximisation of cp(T) at that pressure;
+  the isobar, interpolated through 70 exact solves (bounded maximisation of cp(T) at each node's
+  pressure; within LINE_TOL = 0.12 K of the exact maximum, measured) from 1.0001 pc up to the end of
+  the line, the highest pressure at which cp still has a maximum along the isobar (about 527.6 bar for
+  Span-Wagner CO2; above it there is no such line and no crossing is reported);
 - the freezing boundary of CO2 (solid CO2): T = T_sub(p) below the triple-point pressure and
   T = T_melt(p) above it, both from Span & Wagner (1996) eqs. 3.10 and 3.12. For CO2-rich mixtures the
   pure-CO2 lines are used: an approximation (impurities depress the freezing point a little, so the
@@ -63,17 +66,28 @@ def pseudo_critical_temperature(fluid, p: float) -> float:
     """Temperature of maximum cp along the isobar p [Pa] (pure fluid, p above the model's pc) [K].
 
     Method: a scan of cp over [Tc, Tc + 150 K] in 1 K steps, then bounded Brent maximisation around
-    the largest value to 1e-6 K.
+    the largest value to 1e-6 K. (Path crossings use the interpolated line instead, see the module
+    docstring.)
 
     Raises
     ------
     ModelRangeError
-        For mixtures or at or below the critical pressure.
+        For mixtures, at or below the critical pressure, or where cp has no maximum along the isobar
+        (above :func:`pseudo_critical_line_end`).
     """
     return _pseudo_critical_T(fluid, p)
 
 
 _LINES: dict = {}  # pseudo-critical lines shared by fluids of the same model and composition
+
+#: the interpolated pseudo-critical line: 30 nodes uniform in ln(p/pc - 1) from 1.0001 pc to 2 pc, then 40 nodes
+#: in p from 2 pc to the line's end, closer together towards the end (spacing ~ (1 - s)^2)
+LINE_NODES_LOG, LINE_NODES_P = 30, 40
+LINE_P_MIN = 1e-4  # the first node at (1 + LINE_P_MIN) pc; below it the exact solve is used
+#: measured bound of |interpolated - exact| (tests/analysis/test_crossings.py, 400 random pressures per fluid):
+#: 0.03 K for Span-Wagner CO2 except 80-84 bar, where that equation's cp has two humps of nearly equal height
+#: about 0.17 K apart and the exact maximum jumps between them (0.11 K there); 0.06 K for Peng-Robinson N2
+LINE_TOL = 0.12
 
 
 def _pseudo_critical_T(fluid, p: float, T_hint: float | None = None) -> float:
@@ -84,33 +98,79 @@ def _pseudo_critical_T(fluid, p: float, T_hint: float | None = None) -> float:
     return T
 
 
-def _pseudo_critical_line(fluid):
-    """T_pc(p) as a monotone spline through exact solves at 36 pressures from 1.0001 pc to 60 pc (each started
-    from its neighbour; cached per fluid signature: model, constants, k_ij, composition); used to bracket crossings, which are then located
-    with exact solves."""
-    from scipy.interpolate import PchipInterpolator
+def _has_cp_maximum(fluid, p: float) -> bool:
+    """Whether cp along the isobar p has its largest value inside (Tc, Tc + 150 K) (1 K scan)."""
+    c = fluid.critical_point()
+    T = np.linspace(c.T + 0.01, c.T + 150.0, 151)
+    i = int(np.argmax(fluid.state(T=T, p=np.full_like(T, p)).cp))
+    return 0 < i < len(T) - 1
 
+
+def pseudo_critical_line_end(fluid) -> float:
+    """The highest pressure [Pa] at which cp of a pure fluid still has a maximum along the isobar above Tc
+    (bisection to 1e-5 relative between 2 pc and 60 pc; 60 pc if it has one there). Above it cp falls
+    monotonically with T along the isobar and there is no pseudo-critical line: for Span-Wagner CO2 this is
+    at about 527.6 bar, where the line, having turned back to lower temperatures above about 340 bar, ends."""
+    _, end = _line(fluid)
+    return end
+
+
+def _line(fluid):
     key = fluid.signature
     if key not in _LINES:
-        pc = fluid.critical_point().p
-        u = np.linspace(np.log(1e-4), np.log(59.0), 36)
-        ps = pc * (1.0 + np.exp(u))
+        c = fluid.critical_point()
+        pc = c.p
+        lo, hi = 2.0 * pc, 60.0 * pc
+        if _has_cp_maximum(fluid, hi):
+            end = hi
+        else:
+            while hi - lo > 1e-5 * hi:
+                mid = 0.5 * (lo + hi)
+                if _has_cp_maximum(fluid, mid):
+                    lo = mid
+                else:
+                    hi = mid
+            end = lo
+        from scipy.interpolate import PchipInterpolator
+
+        u = np.linspace(np.log(LINE_P_MIN), 0.0, LINE_NODES_LOG)
+        s = np.linspace(0.0, 1.0, LINE_NODES_P + 1)[1:]
+        ps = np.concatenate([pc * (1.0 + np.exp(u)), end - (end - 2.0 * pc) * (1.0 - s) ** 2])
         Ts = []
-        for k, pi in enumerate(ps):
-            # start from the line extrapolated through the two previous pressures (linear in u)
-            hint = None if k == 0 else Ts[-1] if k == 1 else Ts[-1] + (Ts[-1] - Ts[-2]) * (u[k] - u[k - 1]) / (
-                u[k - 1] - u[k - 2])
-            Ts.append(_pseudo_critical_T(fluid, float(pi), hint))
+        for k, pk in enumerate(ps):
+            # start from the line extrapolated through the two previous nodes (linear in the node index)
+            hint = None if k < 2 else 2.0 * Ts[-1] - Ts[-2]
+            Ts.append(_pseudo_critical_T(fluid, float(pk), hint))
+        n = LINE_NODES_LOG
+        low = PchipInterpolator(u, np.array(Ts[:n]))
+        high = PchipInterpolator(ps[n - 1:], np.array(Ts[n - 1:]))
         if len(_LINES) > 32:
             _LINES.clear()
-        _LINES[key] = (PchipInterpolator(u, np.array(Ts)), pc)
-    spline, pc = _LINES[key]
+        _LINES[key] = ((low, high, pc), end)
+    return _LINES[key]
+
+
+def _pseudo_critical_line(fluid):
+    """T_pc(p) [K] of a pure fluid interpolated through exact solves (monotone cubic pieces through 70 nodes:
+    ``LINE_NODES_LOG`` uniform in ln(p/pc - 1) up to 2 pc, ``LINE_NODES_P`` in p from 2 pc to the end of the line,
+    :func:`pseudo_critical_line_end`), within ``LINE_TOL`` of the exact maximum. Cached per fluid signature
+    (model, constants, k_ij, composition) and the same in every process. Returns NaN at or below pc and
+    above the end of the line; between pc and the first node, 1.0001 pc, the exact solve."""
+    (low, high, pc), end = _line(fluid)
 
     def T_pc(p):
-        v = np.log(max(p / pc - 1.0, 1e-12))
-        if v < np.log(1e-4) or v > np.log(59.0):
-            return _pseudo_critical_T(fluid, p)
-        return float(spline(v))
+        p = float(p)
+        if not (p > pc) or p > end:
+            return float("nan")
+        if p <= 2.0 * pc:
+            v = np.log(p / pc - 1.0)
+            if v < np.log(LINE_P_MIN):
+                try:
+                    return _pseudo_critical_T(fluid, p)
+                except SupercritError:
+                    return float("nan")
+            return float(low(v))
+        return float(high(p))
 
     return T_pc
 
@@ -135,6 +195,9 @@ def _pseudo_critical_T_solve(fluid, p: float, T_hint: float | None = None) -> fl
     T = np.linspace(c.T + 0.01, c.T + 150.0, 151)
     cp = fluid.state(T=T, p=np.full_like(T, p)).cp
     i = int(np.argmax(cp))
+    if not 0 < i < len(T) - 1 and p > 2.0 * c.p:  # (near pc the maximum lies within 0.01 K of Tc: the first point)
+        raise ModelRangeError(f"no pseudo-critical temperature at p = {p / 1e5:.3f} bar: cp has no maximum "
+                              f"along the isobar between Tc and Tc + 150 K (the line ends at a lower pressure)")
     return _refine_cp_max(fluid, p, T[max(i - 1, 0)], T[min(i + 1, len(T) - 1)])
 
 
@@ -331,22 +394,9 @@ def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[f
     if pure and fluid._crit is not None:
         pc = fluid.critical_point().p
 
-        def g_pc(s):
-            if s.p <= pc:
-                return np.nan
-            # the exact solve starts from the interpolated line, built here if this process has not built it
-            # yet: the answer then never depends on which variants a process computed before (a sweep's
-            # table is the same from 1 or N processes)
-            hint = None
-            v = np.log(max(float(s.p) / pc - 1.0, 1e-12))
-            if np.log(1e-4) <= v <= np.log(59.0):
-                hint = _pseudo_critical_line(fluid)(float(s.p))
-            return s.T - _pseudo_critical_T(fluid, s.p, hint)
-
-        funcs.append(("pseudo-critical", g_pc))
-        if any(float(s.p) > pc for s in states) and len({round(float(s.p), 3) for s in states}) > 3:
-            T_pc = _pseudo_critical_line(fluid)  # a path with many pressures: bracket on the spline first
-            funcs[-1] = ("pseudo-critical", g_pc, lambda s: np.nan if s.p <= pc else s.T - T_pc(float(s.p)))
+        if any(float(s.p) > pc for s in states):
+            T_pc = _pseudo_critical_line(fluid)
+            funcs.append(("pseudo-critical", lambda s: np.nan if s.p <= pc else s.T - T_pc(float(s.p))))
     if "CO2" in fluid.components:
         # states that already hold solid lie on the sublimation line (g = 0 to round-off): their entry is the
         # phase-label change above, so the scalar test looks at fluid states only
@@ -357,13 +407,11 @@ def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[f
         funcs.append(("max-T", lambda s: limits["max_T"] - s.T))
     if "max_p" in limits:
         funcs.append(("max-p", lambda s: limits["max_p"] - s.p))
-    for item in funcs:
-        kind, g = item[0], item[1]
-        scan = item[2] if len(item) > 2 else g
+    for kind, g in funcs:
         vals = []
         for s in states:
             try:
-                vals.append(scan(s))
+                vals.append(g(s))
             except SupercritError:
                 vals.append(np.nan)
         for i in range(len(states) - 1):
@@ -372,16 +420,10 @@ def find_crossings(fluid, path: Callable[[float], object], t_samples: Sequence[f
                 continue
             if ga == 0.0:
                 continue
-            if scan is not g:
-                # the bracket came from the interpolated line: the exact function decides. Both ends on one
-                # side means the path only touches the line (within the spline's error, ~0.02 K): no crossing
-                try:
-                    ga, gb = g(states[i]), g(states[i + 1])
-                except SupercritError:
-                    continue
-                if not (np.isfinite(ga) and np.isfinite(gb)) or ga * gb > 0 or ga == 0.0:
-                    continue
-            tstar = brentq(lambda t: g(path(t)), good_t[i], good_t[i + 1], xtol=1e-10, rtol=1e-12)
+            try:
+                tstar = brentq(lambda t: g(path(t)), good_t[i], good_t[i + 1], xtol=1e-10, rtol=1e-12)
+            except (ValueError, RuntimeError):  # the boundary is undefined somewhere inside (NaN): not located
+                continue
             st = path(tstar)
             # g > 0 on the allowed side of the boundary (fluid, within the limit); g < 0 beyond it
             before, after = ("allowed", "beyond") if gb < 0 else ("beyond", "allowed")
