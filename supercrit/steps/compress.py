@@ -2,14 +2,16 @@
 
 Isentropic efficiency (per stage): h2 = h1 + (h2s - h1)/eta, h2s = h(p2, s1).
 Polytropic efficiency (per stage): the path dh = v dp / eta_p is integrated in ln p (4th-order Runge-Kutta,
->= 20 steps per stage); the outlet is the path's end. Multistage: equal pressure ratios chosen so
+>= 4 steps per stage, |d ln p| <= 0.1); the outlet is the path's end; the path is sampled at 20 equal steps
+in ln p (between the integration's nodes on their cubic Hermite interpolant). Multistage: equal pressure ratios chosen so
 that, with ``intercool_dp`` lost in each intercooler, the last stage ends at ``p_out``; between
 stages the gas is cooled to ``intercool_T`` (if given). Power = n (h_out - h_in) per stage, summed.
 
 The sampled path of a stage follows a constant-efficiency polytropic path. With an isentropic
 efficiency, the polytropic efficiency that joins the same end states is found (first guess from the
-ideal-gas relation, one correction by the ratio of enthalpy rises of a coarse 4-step first pass, second pass kept); its value is
-reported in ``extras['polytropic_efficiency']`` and the path's last state is the outlet.
+ideal-gas relation, one correction by the ratio of enthalpy rises of a coarse 4-step first pass, second pass,
+with |d ln p| <= 0.25, kept); its value is reported in ``extras['polytropic_efficiency']`` and the path's
+last state is the outlet.
 References: ASME PTC 10-1997, polytropic head definition (from memory).
 """
 from __future__ import annotations
@@ -24,17 +26,21 @@ from ..thermo.solvers.flash_near import continue_phase
 from .base import N_SEGMENTS, SAMPLE_PATHS, StepPath, StepResult, only_inlet, sample_ph, state_ph, where
 
 
-def polytropic_path(fluid, st1, p2: float, eta_p: float, expand: bool = False, n_steps: int | None = None):
+def polytropic_path(fluid, st1, p2: float, eta_p: float, expand: bool = False, n_steps: int | None = None,
+                    max_step: float = 0.1):
     """States along dh = v dp / eta_p (compression) or dh = eta_p v dp (expansion).
 
-    Integrated in ln p with the classical 4th-order Runge-Kutta method, dh/d(ln p) = f p v,
-    at least 20 steps and |d ln p| <= 0.1 per step. Returns (pressures [Pa], states); the last
-    state is the integrated end. Every sampled state is a full (p, h) flash; the three slope
-    evaluations inside a step continue the phase of the step's start (no stability check), and a
-    step whose end state has another phase than its start is repeated with full flashes throughout."""
+    Integrated in ln p with the classical 4th-order Runge-Kutta method, dh/d(ln p) = f p v, with
+    ``n_steps`` steps, or else at least 4 and |d ln p| <= ``max_step`` per step. Returns (pressures [Pa],
+    states) at ``N_SEGMENTS`` + 1 pressures equally spaced in ln p (or at the integration nodes when there
+    are at least that many, or when ``n_steps`` is given); the last state is the integrated end. Between
+    the nodes h is the cubic Hermite interpolant in ln p of the nodes' h and slopes (fourth-order, like the
+    integration), and each sampled state is a full (p, h) flash. The three slope evaluations inside a step
+    continue the phase of the step's start (no stability check), and a step whose end state has another
+    phase than its start is repeated with full flashes throughout."""
     p1 = float(st1.p)
     lr = math.log(p2 / p1)
-    n = n_steps or max(N_SEGMENTS, int(math.ceil(abs(lr) / 0.1)))
+    n = n_steps or max(4, int(math.ceil(abs(lr) / max_step)))
     ps = p1 * np.exp(np.linspace(0.0, lr, n + 1))
     d = lr / n
     f = eta_p if expand else 1.0 / eta_p
@@ -61,11 +67,13 @@ def polytropic_path(fluid, st1, p2: float, eta_p: float, expand: bool = False, n
         k4 = f * pb / c[1]
         return ha + d * (k1 + 2 * k2 + 2 * k3 + k4) / 6.0
 
+    slopes = []
     for k in range(n):
         pa, pb = float(ps[k]), float(ps[k + 1])
         pm = pa * math.exp(0.5 * d)
         ha = float(st.h)
         k1 = rate(st)
+        slopes.append(k1)
         start_phase = str(st.phase)
         new = None
         if start_phase in ("gas", "liquid", "supercritical"):
@@ -84,7 +92,25 @@ def polytropic_path(fluid, st1, p2: float, eta_p: float, expand: bool = False, n
             new = state_ph(fluid, pb, ha + d * (k1 + 2 * k2 + 2 * k3 + k4) / 6.0, s4)
         st = new
         states.append(st)
-    return ps, states
+    if n_steps is not None or n >= N_SEGMENTS:
+        return ps, states
+    slopes.append(rate(st))
+    hs = [float(s.h) for s in states]
+    u_nodes = np.linspace(0.0, lr, n + 1)
+    u_out = np.linspace(0.0, lr, N_SEGMENTS + 1)
+    out = [st1]
+    prev = st1
+    for j in range(1, N_SEGMENTS):
+        u = float(u_out[j])
+        k = min(int((u - u_nodes[0]) / d), n - 1)
+        w = (u - float(u_nodes[k])) / d  # cubic Hermite on [node k, node k+1] in ln p
+        w2, w3 = w * w, w * w * w
+        h = ((2 * w3 - 3 * w2 + 1) * hs[k] + (w3 - 2 * w2 + w) * d * slopes[k]
+             + (-2 * w3 + 3 * w2) * hs[k + 1] + (w3 - w2) * d * slopes[k + 1])
+        prev = state_ph(fluid, p1 * math.exp(u), h, prev)
+        out.append(prev)
+    out.append(states[-1])
+    return p1 * np.exp(u_out), out
 
 
 def _eta_p_guess(st1, st2s, r: float, eta_s: float, expand: bool) -> float:
@@ -125,7 +151,8 @@ def machine_stage(fluid, st1, p2: float, eta_s: float | None = None, eta_p: floa
     if dh_path != 0.0 and (h2 - h1) != 0.0:
         ratio = dh_path / (h2 - h1)
         guess = guess * ratio if not expand else guess / ratio
-    ps, states = polytropic_path(fluid, st1, p2, guess, expand)
+    # the outlet above is exact; the path only shows the way there, so longer integration steps suffice
+    ps, states = polytropic_path(fluid, st1, p2, guess, expand, max_step=0.25)
     states[-1] = out
     return out, StepPath(label, "p", ps, tuple(states)), guess, eta_s
 
