@@ -380,6 +380,11 @@ class Fluid(PhaseBoundaries):
         if isinstance(near, State):
             if np.ndim(near.T) != 0:
                 return None
+            if self.is_pure and int(np.asarray(near.phase_)) == TWO_PHASE:
+                # a pure fluid's neighbour inside the dome: the full flash (saturation at p, lever rule) is the
+                # direct answer there, and a single-phase Newton from the neighbour's T would end on a
+                # metastable root that the checks below reject (23 model evaluations instead of 8, measured)
+                return None
             T0 = float(near.T)
             rho0 = float(near.rho_molar) if int(np.asarray(near.phase_)) in (GAS, LIQUID, SUPERCRITICAL) else None
             if near.model is not self.model:
