@@ -38,7 +38,15 @@ def path_function(fluid, step_path):
         P = lambda u: p[0] + u * (p[1] - p[0])  # noqa: E731
         H = lambda u: h[0] + u * (h[1] - h[0])  # noqa: E731
     else:
-        P, H = PchipInterpolator(t, p), PchipInterpolator(t, h)
+        splines = []  # built on first use: most paths cross nothing and are never evaluated between samples
+
+        def _splines():
+            if not splines:
+                splines.extend((PchipInterpolator(t, p), PchipInterpolator(t, h)))
+            return splines
+
+        P = lambda u: _splines()[0](u)  # noqa: E731
+        H = lambda u: _splines()[1](u)  # noqa: E731
 
     def path(u: float):
         u = float(min(max(u, 0.0), 1.0))
