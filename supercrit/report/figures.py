@@ -126,13 +126,15 @@ def pt_diagram(diag, routes, u: Units, title="Pressure-temperature: where the ro
                                  marker=dict(symbol=sym, size=12, color=BOUNDARY, line=dict(color="white", width=1)),
                                  name=label, hovertext=f"{label}: {float(u.T(pt_[0])):.2f} {u.u_T}, "
                                                         f"{float(u.p(pt_[1])):.3f} {u.u_p}", hoverinfo="text"))
-    _route_traces(fig, routes, "T", "p", u.T, u.p)
+    yrange = [np.log10(float(u.p(pmin))), np.log10(float(u.p(pmax)))]
+    _route_traces(fig, routes, "T", "p", u.T, u.p, ylog=True, yspan=tuple(yrange))
     _layout(fig, title, f"temperature [{u.u_T}]", f"pressure [{u.u_p}]", ylog=True)
-    fig.update_yaxes(range=[np.log10(float(u.p(pmin))), np.log10(float(u.p(pmax)))])
+    fig.update_yaxes(range=yrange)
     return fig
 
 
-def _route_traces(fig, routes, xkey, ykey, fx, fy):
+def _route_traces(fig, routes, xkey, ykey, fx, fy, ylog=False, yspan=None):
+    labels = []
     for r in routes:
         first = True
         for label, *xy in r["segments"]:
@@ -145,9 +147,7 @@ def _route_traces(fig, routes, xkey, ykey, fx, fy):
                 name=esc(r["name"]), line=dict(color=r["colour"], width=2.5),
                 marker=dict(symbol="arrow", angleref="previous", size=[0] * (x.size - 1) + [11], color=r["colour"]),
                 hovertext=esc(f"{r['name']}: {label}"), hoverinfo="text"))
-            fig.add_trace(go.Scatter(x=fx(x[-1:]), y=fy(y[-1:]), mode="text", text=[esc(label)],
-                                     textposition="top right", textfont=dict(size=10, color=r["colour"]),
-                                     legendgroup=esc(r["name"]), showlegend=False, hoverinfo="skip"))
+            labels.append((float(fx(x[-1:])[0]), float(fy(y[-1:])[0]), str(label), r["colour"], esc(r["name"])))
             first = False
         cr = r.get("crossings", [])
         if cr:
@@ -155,6 +155,70 @@ def _route_traces(fig, routes, xkey, ykey, fx, fy):
                                      marker=dict(symbol="x-thin", size=12, line=dict(width=2.5, color=r["colour"])),
                                      legendgroup=esc(r["name"]), name=esc(f"{r['name']}: crossings"),
                                      hovertext=[c["hover"] for c in cr], hoverinfo="text"))
+    _place_labels(fig, labels, ylog, yspan)
+
+
+#: nominal plot area [px] and label metrics used to keep step labels apart (the figures are 560 px high
+#: with a plot area of about 400 px; the width follows the page, 1000 px or more on a desktop screen)
+_PLOT_W, _PLOT_H, _CHAR_W, _LINE_H = 1000.0, 400.0, 6.0, 13.0
+_POSITIONS = (("top right", 1, 1), ("bottom right", 1, -1), ("top left", -1, 1), ("bottom left", -1, -1),
+              ("middle right", 1, 0), ("middle left", -1, 0), ("top center", 0, 1), ("bottom center", 0, -1))
+
+
+def _axis_span(values, log: bool):
+    v = np.concatenate([np.asarray(a, dtype=float).ravel() for a in values]) if values else np.zeros(0)
+    v = v[np.isfinite(v)]
+    if log:
+        v = np.log10(v[v > 0])
+    if v.size == 0:
+        return 0.0, 1.0
+    lo, hi = float(v.min()), float(v.max())
+    return (lo, hi) if hi > lo else (lo - 0.5, hi + 0.5)
+
+
+def _place_labels(fig, labels, ylog: bool, yspan=None) -> None:
+    """The step labels at the ends of the route segments, each put at the first of eight positions around
+    its point where it does not cover a label placed before it, inside the plot area where one such position
+    is (estimated on a nominal 1000 x 400 px plot area over the data's extent). The same label at the same point for two routes is written once; a
+    label with no free position is left out (the segment's hover text still names the step)."""
+    xs = [tr.x for tr in fig.data if getattr(tr, "x", None) is not None and len(tr.x)]
+    ys = [tr.y for tr in fig.data if getattr(tr, "y", None) is not None and len(tr.y)]
+    try:
+        x0, x1 = _axis_span(xs, False)
+        y0, y1 = yspan if yspan is not None else _axis_span(ys, ylog)
+    except (TypeError, ValueError):  # non-numeric axis data: no placement, every label top right
+        x0, x1, y0, y1 = 0.0, 1.0, 0.0, 1.0
+    placed: list[tuple[float, float, float, float]] = []
+    seen: list[tuple[float, float, str]] = []
+    for x, y, text, colour, group in labels:
+        if not (np.isfinite(x) and np.isfinite(y)) or (ylog and y <= 0):
+            continue
+        px = (x - x0) / (x1 - x0) * _PLOT_W
+        py = ((np.log10(y) if ylog else y) - y0) / (y1 - y0) * _PLOT_H
+        if any(t == text and abs(px - qx) < 4.0 and abs(py - qy) < 4.0 for qx, qy, t in seen):
+            continue
+        w, h = _CHAR_W * len(text) + 4.0, _LINE_H
+        choice = None
+        for inside in (True, False):  # within the plot area if possible
+            for position, sx, sy in _POSITIONS:
+                bx0 = px + 2.0 if sx > 0 else px - 2.0 - w if sx < 0 else px - w / 2
+                by0 = py + 2.0 if sy > 0 else py - 2.0 - h if sy < 0 else py - h / 2
+                box = (bx0, by0, bx0 + w, by0 + h)
+                if inside and not (box[0] >= 0.0 and box[2] <= _PLOT_W and box[1] >= 0.0 and box[3] <= _PLOT_H):
+                    continue
+                if not any(box[0] < b[2] and b[0] < box[2] and box[1] < b[3] and b[1] < box[3] for b in placed):
+                    choice = position, box
+                    break
+            if choice is not None:
+                break
+        if choice is None:
+            continue
+        position, box = choice
+        placed.append(box)
+        seen.append((px, py, text))
+        fig.add_trace(go.Scatter(x=[x], y=[y], mode="text", text=[esc(text)], textposition=position,
+                                 textfont=dict(size=10, color=colour), legendgroup=group, showlegend=False,
+                                 hoverinfo="skip"))
 
 
 def ph_diagram(diag, routes, u: Units):
@@ -165,7 +229,7 @@ def ph_diagram(diag, routes, u: Units):
         fig.add_trace(go.Scatter(x=u.h(hs), y=u.p(ps), mode="lines", line=dict(color="#b8b2a6", width=1),
                                  name=f"{float(u.T(Ti)):.0f} {u.u_T}", legendgroup="isotherms", showlegend=False,
                                  hovertext=f"isotherm {float(u.T(Ti)):.1f} {u.u_T}", hoverinfo="text"))
-    _route_traces(fig, routes, "h", "p", u.h, u.p)
+    _route_traces(fig, routes, "h", "p", u.h, u.p, ylog=True)
     return _layout(fig, "Pressure-enthalpy: duties read as horizontal distances", f"specific enthalpy [{u.u_h}]",
                    f"pressure [{u.u_p}]", ylog=True)
 
