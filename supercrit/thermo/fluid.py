@@ -372,7 +372,7 @@ class Fluid(PhaseBoundaries):
         or below the triple-point pressure where solid CO2 can form); mixtures - the PT flash at the solution is
         single-phase with the same density.
         """
-        from .solvers.density import _stable_density_scalar
+        from .solvers.density import _stable_density_scalar, ancillary_side
         from .solvers.flash_near import single_phase_p_prop
 
         if not (np.isfinite(p) and p > 0 and np.isfinite(target)):
@@ -418,12 +418,8 @@ class Fluid(PhaseBoundaries):
                     if r is None or abs(r - rho) > 1e-7 * rho:
                         return None
                 else:
-                    guess_p = getattr(self.model, "saturation_pressure_guess", None)
                     guess_rho = getattr(self.model, "saturation_guess", None)
-                    if guess_p is None or guess_rho is None or T > c.T - 0.5:
-                        return None
-                    ps = float(guess_p(T))
-                    if not ((rho > c.rho and p >= 1.005 * ps) or (rho < c.rho and p <= 0.995 * ps)):
+                    if guess_rho is None or ancillary_side(self.model, T, p) != ("liquid" if rho > c.rho else "vapor"):
                         return None
                     # the root must lie on the side's own branch, outside the ancillary saturated densities
                     # (1 % margin). Inside the dome the reference equation's loop has stretches with
