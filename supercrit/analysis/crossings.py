@@ -140,7 +140,7 @@ def _line(fluid):
         for k, pk in enumerate(ps):
             # start from the line extrapolated through the two previous nodes (linear in the node index)
             hint = None if k < 2 else 2.0 * Ts[-1] - Ts[-2]
-            Ts.append(_pseudo_critical_T(fluid, float(pk), hint))
+            Ts.append(_pseudo_critical_T_solve(fluid, float(pk), hint))  # not the per-fluid cache: the same line in every process
         n = LINE_NODES_LOG
         low = PchipInterpolator(u, np.array(Ts[:n]))
         high = PchipInterpolator(ps[n - 1:], np.array(Ts[n - 1:]))
