@@ -84,9 +84,10 @@ _LINES: dict = {}  # pseudo-critical lines shared by fluids of the same model an
 #: in p from 2 pc to the line's end, closer together towards the end (spacing ~ (1 - s)^2)
 LINE_NODES_LOG, LINE_NODES_P = 30, 40
 LINE_P_MIN = 1e-4  # the first node at (1 + LINE_P_MIN) pc; below it the exact solve is used
-#: measured bound of |interpolated - exact| (tests/analysis/test_crossings.py, 400 random pressures per fluid):
-#: 0.03 K for Span-Wagner CO2 except 80-84 bar, where that equation's cp has two humps of nearly equal height
-#: about 0.17 K apart and the exact maximum jumps between them (0.11 K there); 0.06 K for Peng-Robinson N2
+#: bound of |interpolated - exact|, measured at 400 random pressures per fluid when the nodes were chosen
+#: (tests/analysis/test_crossings.py checks 63 per fluid): 0.03 K for Span-Wagner CO2 except 80-84 bar, where
+#: that equation's cp has two humps of nearly equal height about 0.17 K apart and the exact maximum jumps
+#: between them (0.11 K there); 0.053 K for Peng-Robinson N2 (largest just above pc)
 LINE_TOL = 0.12
 
 
@@ -140,7 +141,8 @@ def _line(fluid):
         for k, pk in enumerate(ps):
             # start from the line extrapolated through the two previous nodes (linear in the node index)
             hint = None if k < 2 else 2.0 * Ts[-1] - Ts[-2]
-            Ts.append(_pseudo_critical_T_solve(fluid, float(pk), hint))  # not the per-fluid cache: the same line in every process
+            # solved afresh, not taken from the fluid's cache of single solves: the same line in every process
+            Ts.append(_pseudo_critical_T_solve(fluid, float(pk), hint))
         n = LINE_NODES_LOG
         low = PchipInterpolator(u, np.array(Ts[:n]))
         high = PchipInterpolator(ps[n - 1:], np.array(Ts[n - 1:]))
