@@ -65,9 +65,9 @@ def _label(state) -> str:
 def pseudo_critical_temperature(fluid, p: float) -> float:
     """Temperature of maximum cp along the isobar p [Pa] (pure fluid, p above the model's pc) [K].
 
-    Method: a scan of cp over [Tc, Tc + 150 K] in 1 K steps, then bounded Brent maximisation around
-    the largest value to 1e-6 K. (Path crossings use the interpolated line instead, see the module
-    docstring.)
+    Method: a scan of cp from Tc in 1 K steps (150 K at a time, continued while the largest value lies at
+    the upper end), then bounded Brent maximisation around the largest value to 1e-6 K. (Path crossings
+    use the interpolated line instead, see the module docstring.)
 
     Raises
     ------
@@ -99,19 +99,37 @@ def _pseudo_critical_T(fluid, p: float, T_hint: float | None = None) -> float:
     return T
 
 
-def _has_cp_maximum(fluid, p: float) -> bool:
-    """Whether cp along the isobar p has its largest value inside (Tc, Tc + 150 K) (1 K scan)."""
+def _cp_scan(fluid, p: float):
+    """(T grid [K], index of its largest cp, whether the grid is the first window) of a scan of cp along the
+    isobar p from Tc + 0.01 K up in steps of about 1 K, in windows of 150 K: a window whose largest value
+    lies at its upper end is followed by the next one, up to the fluid's upper temperature limit (the
+    maximum of a heavy component moves more than 150 K above Tc at a few times pc)."""
     c = fluid.critical_point()
-    T = np.linspace(c.T + 0.01, c.T + 150.0, 151)
-    i = int(np.argmax(fluid.state(T=T, p=np.full_like(T, p)).cp))
-    return 0 < i < len(T) - 1
+    T_top = fluid._T_limits()[1]
+    lo, first = c.T + 0.01, True
+    while True:
+        hi = min(lo + 149.99, T_top)
+        T = np.linspace(lo, hi, 151)
+        i = int(np.argmax(fluid.state(T=T, p=np.full_like(T, p)).cp))
+        if i < len(T) - 1 or hi >= T_top:
+            return T, i, first
+        lo, first = float(T[-2]), False  # the last point becomes interior to the next window
+
+
+def _has_cp_maximum(fluid, p: float) -> bool:
+    """Whether cp along the isobar p has a maximum above Tc below the fluid's upper temperature limit:
+    the scan's largest value neither at Tc + 0.01 K nor at the limit."""
+    T, i, first = _cp_scan(fluid, p)
+    return not (first and i == 0) and i < len(T) - 1
 
 
 def pseudo_critical_line_end(fluid) -> float:
-    """The highest pressure [Pa] at which cp of a pure fluid still has a maximum along the isobar above Tc
-    (bisection to 1e-5 relative between 2 pc and 60 pc; 60 pc if it has one there). Above it cp falls
-    monotonically with T along the isobar and there is no pseudo-critical line: for Span-Wagner CO2 this is
-    at about 527.6 bar, where the line, having turned back to lower temperatures above about 340 bar, ends."""
+    """The highest pressure [Pa] at which cp of a pure fluid still has a maximum along the isobar above Tc,
+    below the upper temperature limit of the fluid's data (bisection to 1e-5 relative between 2 pc and
+    60 pc; 60 pc if it has one there). Above it there is no pseudo-critical line: for Span-Wagner CO2 at
+    about 527.6 bar, where the line, having turned back to lower temperatures above about 340 bar, ends
+    and cp falls monotonically with T along the isobar; for the cubic equations the line's end pressure
+    depends on the equation (for Peng-Robinson CO2 the maximum is still there at 60 pc)."""
     _, end = _line(fluid)
     return end
 
@@ -194,12 +212,13 @@ def _pseudo_critical_T_solve(fluid, p: float, T_hint: float | None = None) -> fl
             i = int(np.argmax(cp))
             if 0 < i < len(T) - 1:
                 return _refine_cp_max(fluid, p, T[i - 1], T[i + 1], cp_of)
-    T = np.linspace(c.T + 0.01, c.T + 150.0, 151)
-    cp = fluid.state(T=T, p=np.full_like(T, p)).cp
-    i = int(np.argmax(cp))
-    if not 0 < i < len(T) - 1 and p > 2.0 * c.p:  # (near pc the maximum lies within 0.01 K of Tc: the first point)
+    T, i, first = _cp_scan(fluid, p)
+    if i == len(T) - 1:
+        raise ModelRangeError(f"no pseudo-critical temperature at p = {p / 1e5:.3f} bar: cp still rises at the "
+                              f"upper temperature limit of the fluid's data, {T[-1]:.1f} K")
+    if first and i == 0 and p > 2.0 * c.p:  # (near pc the maximum lies within 0.01 K of Tc: the first point)
         raise ModelRangeError(f"no pseudo-critical temperature at p = {p / 1e5:.3f} bar: cp has no maximum "
-                              f"along the isobar between Tc and Tc + 150 K (the line ends at a lower pressure)")
+                              f"along the isobar above Tc (the line ends at a lower pressure)")
     return _refine_cp_max(fluid, p, T[max(i - 1, 0)], T[min(i + 1, len(T) - 1)])
 
 

@@ -146,3 +146,17 @@ def test_pseudo_critical_line_ends_where_cp_has_no_maximum():
     pcs = [x for x in cr if x.kind == "pseudo-critical"]
     assert len(pcs) == 1
     assert pcs[0].T == pytest.approx(pseudo_critical_temperature(f, 300e5), abs=crs.LINE_TOL)
+
+
+def test_pseudo_critical_temperature_more_than_150_k_above_tc_is_found():
+    """Peng-Robinson CO2 at 30 pc and 40 pc: the cp maximum lies about 200 K and 450 K above Tc, beyond the
+    first 150 K window of the scan (which used to end there and called the line ended at about 25 pc).
+    Checked against an independent 0.5 K scan of cp up to Tc + 900 K."""
+    f = sc.Fluid("CO2", model="pr")
+    c = f.critical_point()
+    for k in (30.0, 40.0):
+        p = k * c.p
+        T = np.arange(c.T + 0.5, c.T + 900.0, 0.5)
+        T_scan = T[np.argmax(f.state(T=T, p=np.full_like(T, p)).cp)]
+        assert T_scan > c.T + 150.0
+        assert pseudo_critical_temperature(f, p) == pytest.approx(T_scan, abs=0.5)
