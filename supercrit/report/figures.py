@@ -160,7 +160,10 @@ def _route_traces(fig, routes, xkey, ykey, fx, fy, ylog=False, yspan=None):
 
 #: nominal plot area [px] and label metrics used to keep step labels apart (the figures are 560 px high
 #: with a plot area of about 400 px; the width follows the page, 1000 px or more on a desktop screen)
-_PLOT_W, _PLOT_H, _CHAR_W, _LINE_H = 1000.0, 400.0, 6.0, 13.0
+_PLOT_W, _PLOT_H, _CHAR_W, _LINE_H, _GAP = 1000.0, 400.0, 6.0, 13.0, 8.0
+#: a label beside its point is padded on the point's side with two no-break spaces (about 2.8 px each at 10 px
+#: Helvetica), so that labels left and right of one point stand apart
+_SIDE_PAD_TEXT, _SIDE_PAD = "\u00a0\u00a0", 5.6
 _POSITIONS = (("top right", 1, 1), ("bottom right", 1, -1), ("top left", -1, 1), ("bottom left", -1, -1),
               ("middle right", 1, 0), ("middle left", -1, 0), ("top center", 0, 1), ("bottom center", 0, -1))
 
@@ -176,11 +179,22 @@ def _axis_span(values, log: bool):
     return (lo, hi) if hi > lo else (lo - 0.5, hi + 0.5)
 
 
+def _label_box(px: float, py: float, text: str, sx: int, sy: int) -> tuple[float, float, float, float]:
+    """The estimated box [px] of a label's visible text at a position (sx, sy: -1, 0, 1 for left/centre/right,
+    bottom/middle/top) around its point (px, py)."""
+    w, h = _CHAR_W * len(text) + 4.0, _LINE_H
+    bx0 = px + 2.0 + _SIDE_PAD if sx > 0 else px - 2.0 - _SIDE_PAD - w if sx < 0 else px - w / 2
+    by0 = py + 2.0 if sy > 0 else py - 2.0 - h if sy < 0 else py - h / 2
+    return bx0, by0, bx0 + w, by0 + h
+
+
 def _place_labels(fig, labels, ylog: bool, yspan=None) -> None:
     """The step labels at the ends of the route segments, each put at the first of eight positions around
-    its point where it does not cover a label placed before it, inside the plot area where one such position
-    is (estimated on a nominal 1000 x 400 px plot area over the data's extent). The same label at the same point for two routes is written once; a
-    label with no free position is left out (the segment's hover text still names the step)."""
+    its point where it covers no label placed before it and keeps 8 px from any beside it on the same line,
+    inside the plot area where one such position is (estimated on a nominal 1000 x 400 px plot area over the
+    data's extent; a label beside its point stands a little off it, so that labels left and right of one
+    point do not run together). The same label at the same point for two routes is written once; a label
+    with no free position is left out (the segment's hover text still names the step)."""
     xs = [tr.x for tr in fig.data if getattr(tr, "x", None) is not None and len(tr.x)]
     ys = [tr.y for tr in fig.data if getattr(tr, "y", None) is not None and len(tr.y)]
     try:
@@ -197,26 +211,26 @@ def _place_labels(fig, labels, ylog: bool, yspan=None) -> None:
         py = ((np.log10(y) if ylog else y) - y0) / (y1 - y0) * _PLOT_H
         if any(t == text and abs(px - qx) < 4.0 and abs(py - qy) < 4.0 for qx, qy, t in seen):
             continue
-        w, h = _CHAR_W * len(text) + 4.0, _LINE_H
         choice = None
         for inside in (True, False):  # within the plot area if possible
             for position, sx, sy in _POSITIONS:
-                bx0 = px + 2.0 if sx > 0 else px - 2.0 - w if sx < 0 else px - w / 2
-                by0 = py + 2.0 if sy > 0 else py - 2.0 - h if sy < 0 else py - h / 2
-                box = (bx0, by0, bx0 + w, by0 + h)
+                box = _label_box(px, py, text, sx, sy)
                 if inside and not (box[0] >= 0.0 and box[2] <= _PLOT_W and box[1] >= 0.0 and box[3] <= _PLOT_H):
                     continue
-                if not any(box[0] < b[2] and b[0] < box[2] and box[1] < b[3] and b[1] < box[3] for b in placed):
-                    choice = position, box
+                # side by side, a gap of _GAP px at least: two labels on one line must not read as one
+                if not any(box[0] < b[2] + _GAP and b[0] < box[2] + _GAP and box[1] < b[3] and b[1] < box[3]
+                           for b in placed):
+                    choice = position, sx, box
                     break
             if choice is not None:
                 break
         if choice is None:
             continue
-        position, box = choice
+        position, sx, box = choice
         placed.append(box)
         seen.append((px, py, text))
-        fig.add_trace(go.Scatter(x=[x], y=[y], mode="text", text=[esc(text)], textposition=position,
+        shown = _SIDE_PAD_TEXT + esc(text) if sx > 0 else esc(text) + _SIDE_PAD_TEXT if sx < 0 else esc(text)
+        fig.add_trace(go.Scatter(x=[x], y=[y], mode="text", text=[shown], textposition=position,
                                  textfont=dict(size=10, color=colour), legendgroup=group, showlegend=False,
                                  hoverinfo="skip"))
 

@@ -3,7 +3,7 @@ showed 'hp-pump' over 'extraction-heater' and 'subcooler', 'condenser' and 'letd
 import numpy as np
 import plotly.graph_objects as go
 
-from supercrit.report.figures import _CHAR_W, _LINE_H, _PLOT_H, _PLOT_W, _place_labels
+from supercrit.report.figures import _GAP, _PLOT_H, _PLOT_W, _label_box, _place_labels
 
 
 def _boxes(fig, x0, x1, y0, y1, ylog):
@@ -12,13 +12,13 @@ def _boxes(fig, x0, x1, y0, y1, ylog):
     for tr in fig.data:
         if tr.mode != "text":
             continue
-        x, y, text, pos = float(tr.x[0]), float(tr.y[0]), tr.text[0], tr.textposition
+        x, y, pos = float(tr.x[0]), float(tr.y[0]), tr.textposition
+        text = tr.text[0].strip("\u00a0")
         px = (x - x0) / (x1 - x0) * _PLOT_W
         py = ((np.log10(y) if ylog else y) - y0) / (y1 - y0) * _PLOT_H
-        w, h = _CHAR_W * len(text) + 4.0, _LINE_H
-        bx = px + 2 if "right" in pos else px - 2 - w if "left" in pos else px - w / 2
-        by = py + 2 if pos.startswith("top") else py - 2 - h if pos.startswith("bottom") else py - h / 2
-        out.append((bx, by, bx + w, by + h))
+        sx = 1 if "right" in pos else -1 if "left" in pos else 0
+        sy = 1 if pos.startswith("top") else -1 if pos.startswith("bottom") else 0
+        out.append(_label_box(px, py, text, sx, sy))
     return out
 
 
@@ -28,12 +28,13 @@ def test_labels_at_one_point_take_different_places_and_duplicates_are_written_on
     labels += [(50.0, 100.0, "condenser", "#f00", "r2"),  # the same step of another route: once
                (90.0, 900.0, "extraction-heater", "#000", "r1")]
     _place_labels(fig, labels, ylog=True)
-    texts = [tr.text[0] for tr in fig.data if tr.mode == "text"]
+    texts = [tr.text[0].strip("\u00a0") for tr in fig.data if tr.mode == "text"]
     assert sorted(texts) == ["condenser", "extraction-heater", "letdown-valve", "subcooler"]
     boxes = _boxes(fig, 0.0, 100.0, 1.0, 3.0, True)
     for i, a in enumerate(boxes):
         for b in boxes[i + 1:]:
-            assert not (a[0] < b[2] and b[0] < a[2] and a[1] < b[3] and b[1] < a[3])
+            # side by side, apart by the gap that keeps two labels on one line from reading as one
+            assert not (a[0] < b[2] + _GAP and b[0] < a[2] + _GAP and a[1] < b[3] and b[1] < a[3])
 
 
 
