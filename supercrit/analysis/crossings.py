@@ -32,6 +32,7 @@ import numpy as np
 from scipy.optimize import brentq, minimize_scalar
 
 from ..errors import ConvergenceError, ModelRangeError, SupercritError
+from ..thermo.constants import R_CODATA_2018
 
 T_TOL, P_TOL = 0.005, 500.0  # [K], [Pa]: half the required 0.01 K / 0.01 bar
 
@@ -91,11 +92,12 @@ LINE_P_MIN = 1e-4  # the first node at (1 + LINE_P_MIN) pc; below it the exact s
 LINE_TOL = 0.12
 
 
-def _pseudo_critical_T(fluid, p: float, T_hint: float | None = None) -> float:
+def _pseudo_critical_T(fluid, p: float) -> float:
+    """The exact solve at p, cached per fluid and pressure."""
     cache = fluid.__dict__.setdefault("_pseudo_critical_cache", {})
     if p in cache:
         return cache[p]
-    cache[p] = T = _pseudo_critical_T_solve(fluid, p, T_hint)
+    cache[p] = T = _pseudo_critical_T_solve(fluid, p)
     return T
 
 
@@ -137,8 +139,7 @@ def pseudo_critical_line_end(fluid) -> float:
 def _line(fluid):
     key = fluid.signature
     if key not in _LINES:
-        c = fluid.critical_point()
-        pc = c.p
+        pc = fluid.critical_point().p
         lo, hi = 2.0 * pc, 60.0 * pc
         if _has_cp_maximum(fluid, hi):
             end = hi
@@ -290,7 +291,7 @@ def _saturation_crossing(fluid, path, ta, sa, tb, sb):
             return None
         # an end on the saturation line to round-off (e.g. a condenser's outlet at vapour fraction 0, where
         # the next step starts) is the crossing itself
-        tol = 1e-12 * (abs(path.h_of(ta)) + 8.314462618 * float(sa.T))
+        tol = 1e-12 * (abs(path.h_of(ta)) + R_CODATA_2018 * float(sa.T))
         ga = 0.0 if abs(ga) <= tol else ga
         gb = 0.0 if abs(gb) <= tol else gb
         if ga * gb > 0 or (ga == 0 and gb == 0):

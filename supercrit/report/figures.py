@@ -159,10 +159,11 @@ def _route_traces(fig, routes, xkey, ykey, fx, fy, ylog=False, yspan=None):
 
 
 #: nominal plot area [px] and label metrics used to keep step labels apart (the figures are 560 px high
-#: with a plot area of about 400 px; the width follows the page, 1000 px or more on a desktop screen)
+#: with a plot area of about 400 px; the width follows the page, 1000 px or more on a desktop screen); the
+#: character width is our estimate for 10 px text, checked against the rendered charts in headless Chromium
 _PLOT_W, _PLOT_H, _CHAR_W, _LINE_H, _GAP = 1000.0, 400.0, 6.0, 13.0, 8.0
-#: a label beside its point is padded on the point's side with two no-break spaces (about 2.8 px each at 10 px
-#: Helvetica), so that labels left and right of one point stand apart
+#: a label beside its point is padded on the point's side with two no-break spaces (about 2.8 px each at 10 px:
+#: a space is about 0.28 em in Helvetica, from memory), so that labels left and right of one point stand apart
 _SIDE_PAD_TEXT, _SIDE_PAD = "\u00a0\u00a0", 5.6
 _POSITIONS = (("top right", 1, 1), ("bottom right", 1, -1), ("top left", -1, 1), ("bottom left", -1, -1),
               ("middle right", 1, 0), ("middle left", -1, 0), ("top center", 0, 1), ("bottom center", 0, -1))
@@ -200,8 +201,9 @@ def _place_labels(fig, labels, ylog: bool, yspan=None) -> None:
     try:
         x0, x1 = _axis_span(xs, False)
         y0, y1 = yspan if yspan is not None else _axis_span(ys, ylog)
-    except (TypeError, ValueError):  # non-numeric axis data: no placement, every label top right
-        x0, x1, y0, y1 = 0.0, 1.0, 0.0, 1.0
+    except (TypeError, ValueError):  # non-numeric data in another trace: the labels' own extent instead
+        x0, x1 = _axis_span([[lb[0] for lb in labels]], False)
+        y0, y1 = yspan if yspan is not None else _axis_span([[lb[1] for lb in labels]], ylog)
     placed: list[tuple[float, float, float, float]] = []
     seen: list[tuple[float, float, str]] = []
     for x, y, text, colour, group in labels:

@@ -102,7 +102,7 @@ def polytropic_path(fluid, st1, p2: float, eta_p: float, expand: bool = False, n
     prev = st1
     for j in range(1, N_SEGMENTS):
         u = float(u_out[j])
-        k = min(int((u - u_nodes[0]) / d), n - 1)
+        k = min(int(u / d), n - 1)
         w = (u - float(u_nodes[k])) / d  # cubic Hermite on [node k, node k+1] in ln p
         w2, w3 = w * w, w * w * w
         h = ((2 * w3 - 3 * w2 + 1) * hs[k] + (w3 - 2 * w2 + w) * d * slopes[k]

@@ -12,11 +12,11 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.optimize import brentq
 
-from ..errors import ConvergenceError, InputError, ModelRangeError
+from ..errors import ConvergenceError, InputError, ModelRangeError, SecondLiquidError
 from .properties import all_properties
 from .solvers.critical import critical_point_hk
 from .solvers.envelope import Envelope, EnvelopePoint, trace_envelope
-from .solvers.flash import FlashResult, SecondLiquidError, flash_Tp
+from .solvers.flash import FlashResult, flash_Tp
 from .solvers.saturation_point import solve_sat_point
 from .solvers.result import SolverReport
 from .state import GAS, LIQUID, SUPERCRITICAL, TWO_PHASE, State

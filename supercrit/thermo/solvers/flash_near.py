@@ -23,11 +23,10 @@ from ..properties import _all_properties_scalar, all_properties
 from .density import warm_density
 
 
-def _props(model, ideal, M, T: float, rho: float, x):
-    if isinstance(x, tuple):  # a model with the single-state hooks: the same numbers as Python floats
-        pr = _all_properties_scalar(model, ideal, M, T, rho, x, wrap=False)
-    else:
-        pr = all_properties(model, ideal, M, T, rho, x)
+def _props(model, ideal, M, T: float, rho: float, x, scalar: bool):
+    # scalar: the model has the single-state hooks; the same numbers as all_properties, as Python floats
+    pr = _all_properties_scalar(model, ideal, M, T, rho, x, wrap=False) if scalar else \
+        all_properties(model, ideal, M, T, rho, x)
     return (float(pr["p"]), float(pr["h"]), float(pr["s"]), float(pr["cv"]), float(pr["dpdT"]),
             float(pr["dpdrho"]))
 
@@ -43,8 +42,9 @@ def single_phase_p_prop(model, ideal, M, x, p: float, target: float, key: str, T
     [T_min, T_max], on a mechanically unstable density ((dp/drho)_T <= 0) or after ``max_iter`` steps.
     """
     x = np.asarray(x, dtype=float)
-    if x.ndim == 1 and hasattr(model, "alphar_derivs_scalar") and hasattr(ideal, "all_R_scalar"):
-        x = tuple(x.tolist())  # _props then skips all_properties' checks and numpy wrapping (same numbers)
+    scalar = x.ndim == 1 and hasattr(model, "alphar_derivs_scalar") and hasattr(ideal, "all_R_scalar")
+    if scalar:
+        x = tuple(x.tolist())  # no all_properties checks and numpy wrapping per iteration
     T, rho = float(T0), float(rho0)
     if not (T > 0 and rho > 0 and math.isfinite(T) and math.isfinite(rho)):
         return None
@@ -52,7 +52,7 @@ def single_phase_p_prop(model, ideal, M, x, p: float, target: float, key: str, T
     prev = float("inf")
     for _ in range(max_iter):
         try:
-            pr, h, s, cv, dpdT, dpdrho = _props(model, ideal, M, T, rho, x)
+            pr, h, s, cv, dpdT, dpdrho = _props(model, ideal, M, T, rho, x, scalar)
         except (ArithmeticError, ValueError):
             return None
         if not (dpdrho > 0.0) or not math.isfinite(pr):
